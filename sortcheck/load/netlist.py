@@ -1,0 +1,201 @@
+"""Parse netlist format version 1 into the model, checking its meaning.
+
+:func:`parse_netlist` is pure: text in, model out.  :func:`read_netlist` is
+the thin wrapper that reads a file.  Every problem is a
+:class:`~sortcheck.errors.NetlistError` naming the file and the place.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+from pathlib import Path
+from typing import Any
+
+import networkx as nx
+
+from sortcheck.errors import NetlistError
+from sortcheck.load.decode import decode_text, load_json
+from sortcheck.load.schema import check_header, validate_shape
+from sortcheck.model import (
+    OP_ARITY, ComparatorNetwork, GateCircuit, Gate, Netlist, OutputWord, Word, bit_name, property_from_json,
+)
+
+#: Files larger than this are refused before they are read.
+MAX_FILE_BYTES = 256 * 1024 * 1024
+
+_BIT_PATTERN = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\[(\d+)\]$")
+
+
+def parse_netlist(text: str | bytes, source: str = "<netlist>") -> Netlist:
+    """Parse the text of a netlist (format version 1) into a model.
+
+    Parameters
+    ----------
+    text : str or bytes
+        The JSON document; bytes must be UTF-8.
+    source : str
+        Name of the file the text came from, used in error messages.
+
+    Returns
+    -------
+    ComparatorNetwork or GateCircuit
+
+    Raises
+    ------
+    NetlistError
+        When the text is not a valid netlist; the message names ``source``
+        and the place.
+
+    Examples
+    --------
+    >>> net = parse_netlist('{"sortcheck": 1, "kind": "comparator-network", "channels": 2, '
+    ...                     '"comparators": [[0, 1]]}')
+    >>> net.channels, net.comparators
+    (2, ((0, 1),))
+    >>> parse_netlist('{"sortcheck": 1, "kind": "comparator-network", "channels": 8, '
+    ...               '"comparators": [[0, 9]]}', source="net.json")
+    Traceback (most recent call last):
+    ...
+    sortcheck.errors.NetlistError: net.json: comparators[0]: channel 9 is out of range for 8 channels
+    """
+    data = load_json(decode_text(text, source), source)
+    kind = check_header(data, source)
+    validate_shape(data, source)
+    metadata = {"name": data.get("name"), "description": data.get("description")}
+    if "property" in data:
+        metadata["claim"] = property_from_json(data["property"], source, where="property")
+    if kind == "comparator-network":
+        return _build_network(data, source, metadata)
+    return _build_circuit(data, source, metadata)
+
+
+def read_netlist(path: str | os.PathLike) -> Netlist:
+    """Read and parse a netlist file; errors name the file as given."""
+    source = str(path)
+    file = Path(path)
+    try:
+        if file.is_dir():
+            raise NetlistError("is a directory, not a netlist file", source)
+        size = file.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise NetlistError(f"file of {size} bytes is larger than the {MAX_FILE_BYTES} bytes supported", source)
+        data = file.read_bytes()
+    except FileNotFoundError:
+        raise NetlistError("no such file", source) from None
+    except PermissionError:
+        raise NetlistError("permission denied", source) from None
+    except OSError as error:
+        raise NetlistError(f"cannot read: {error.strerror or error}", source) from None
+    return parse_netlist(data, source)
+
+
+def _build_network(data: dict, source: str, metadata: dict) -> ComparatorNetwork:
+    channels = data["channels"]
+    comparators: list[tuple[int, int]] = []
+    if "comparators" in data:
+        for i, pair in enumerate(data["comparators"]):
+            comparators.append(_comparator(pair, channels, source, f"comparators[{i}]"))
+        return ComparatorNetwork(channels, tuple(comparators), **metadata)
+    for layer_index, layer in enumerate(data["layers"]):
+        used: dict[int, str] = {}
+        for i, pair in enumerate(layer):
+            where = f"layers[{layer_index}][{i}]"
+            comparators.append(_comparator(pair, channels, source, where))
+            for channel in pair:
+                if channel in used:
+                    raise NetlistError(f"channel {channel} is used twice in layer {layer_index} "
+                                       f"(also by {used[channel]})", source, where)
+                used[channel] = where
+    return ComparatorNetwork(channels, tuple(comparators), **metadata)
+
+
+def _comparator(pair: list[int], channels: int, source: str, where: str) -> tuple[int, int]:
+    a, b = pair
+    for channel in (a, b):
+        if channel >= channels:
+            raise NetlistError(f"channel {channel} is out of range for {channels} channels", source, where)
+    if a == b:
+        raise NetlistError(f"comparator [{a}, {b}] joins channel {a} to itself", source, where)
+    return a, b
+
+
+def _build_circuit(data: dict, source: str, metadata: dict) -> GateCircuit:
+    inputs = _input_words(data["inputs"], source)
+    widths = {word.name: word.width for word in inputs}
+    defined: dict[str, str] = {}  # signal -> where it is defined
+    for word in inputs:
+        for i in range(word.width):
+            defined[bit_name(word.name, i)] = "an input bit"
+    gates = []
+    for index, item in enumerate(data["gates"]):
+        where = f"gates[{index}]"
+        out = item["out"]
+        match = _BIT_PATTERN.match(out)
+        if out in defined:
+            what = defined[out] if defined[out] == "an input bit" else f"already defined by {defined[out]}"
+            raise NetlistError(f"gate output {out!r} is {what}", source, f"{where}.out")
+        if match and match.group(1) in widths:
+            raise NetlistError(f"gate output {out!r} shadows a bit of input word {match.group(1)!r}",
+                               source, f"{where}.out")
+        fewest, most = OP_ARITY[item["op"]]
+        count = len(item["in"])
+        if count < fewest or (most is not None and count > most):
+            expected = f"exactly {fewest}" if fewest == most else f"at least {fewest}"
+            raise NetlistError(f"{item['op']!r} takes {expected} input{'s' if fewest > 1 else ''}, got {count}",
+                               source, f"{where}.in")
+        defined[out] = where
+        gates.append(Gate(out, item["op"], tuple(item["in"])))
+    for index, gate in enumerate(gates):
+        for position, signal in enumerate(gate.inputs):
+            _check_reference(signal, defined, widths, source, f"gates[{index}].in[{position}]")
+    outputs = []
+    names: dict[str, int] = {}
+    for index, item in enumerate(data["outputs"]):
+        if item["name"] in names:
+            raise NetlistError(f"duplicate output word {item['name']!r} (also outputs[{names[item['name']]}])",
+                               source, f"outputs[{index}].name")
+        names[item["name"]] = index
+        for position, signal in enumerate(item["bits"]):
+            _check_reference(signal, defined, widths, source, f"outputs[{index}].bits[{position}]")
+        outputs.append(OutputWord(item["name"], tuple(item["bits"])))
+    circuit = GateCircuit(tuple(inputs), tuple(gates), tuple(outputs), **metadata)
+    _check_acyclic(circuit, source)
+    return circuit
+
+
+def _input_words(items: list[dict], source: str) -> list[Word]:
+    words: list[Word] = []
+    seen: dict[str, int] = {}
+    for index, item in enumerate(items):
+        if item["name"] in seen:
+            raise NetlistError(f"duplicate input word {item['name']!r} (also inputs[{seen[item['name']]}])",
+                               source, f"inputs[{index}].name")
+        seen[item["name"]] = index
+        words.append(Word(item["name"], item["width"]))
+    return words
+
+
+def _check_reference(signal: Any, defined: dict[str, str], widths: dict[str, int], source: str, where: str) -> None:
+    if isinstance(signal, bool) or (isinstance(signal, int) and signal not in (0, 1)):
+        raise NetlistError(f"constant {signal!r} is not 0 or 1", source, where)
+    if isinstance(signal, int) or signal in defined:
+        return
+    match = _BIT_PATTERN.match(signal)
+    if match and match.group(1) in widths:
+        word, bit = match.group(1), int(match.group(2))
+        raise NetlistError(f"bit {bit} is out of range for input word {word!r} of width {widths[word]}",
+                           source, where)
+    raise NetlistError(f"undefined signal {signal!r}", source, where)
+
+
+def _check_acyclic(circuit: GateCircuit, source: str) -> None:
+    graph = circuit.graph
+    if nx.is_directed_acyclic_graph(graph):
+        return
+    order = {gate.out: index for index, gate in enumerate(circuit.gates)}
+    cycle = [edge[0] for edge in nx.find_cycle(graph)]
+    start = min(range(len(cycle)), key=lambda i: order[cycle[i]])
+    cycle = cycle[start:] + cycle[:start]
+    path = " -> ".join(cycle + [cycle[0]])
+    raise NetlistError(f"combinational cycle through signals {path}", source, f"gates[{order[cycle[0]]}]")
