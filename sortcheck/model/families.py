@@ -28,6 +28,12 @@ from sortcheck.model.properties import Sorts
 MAX_CHANNELS = 65536
 """Largest channel count :func:`build_family` accepts."""
 
+MAX_COMPARATORS = 20_000_000
+"""Largest network :func:`build_family` builds (about 2 GB as Python tuples)."""
+
+QUADRATIC_FAMILIES = ("insertion", "odd-even-transposition")
+"""Families with n(n-1)/2 comparators, for which :data:`MAX_COMPARATORS` binds first."""
+
 
 def _require_channels(family: str, n: int) -> None:
     """Raise ``ValueError`` unless ``n`` is an integer of at least 1."""
@@ -287,6 +293,9 @@ def build_family(name: str, n: int) -> ComparatorNetwork:
         raise UsageError(f"unknown family {name!r}; known families: {known}")
     if isinstance(n, int) and not isinstance(n, bool) and n > MAX_CHANNELS:
         raise UsageError(f"{name} is limited to {MAX_CHANNELS} channels, got {n}")
+    if name in QUADRATIC_FAMILIES and isinstance(n, int) and n * (n - 1) // 2 > MAX_COMPARATORS:
+        raise UsageError(f"{name} on {n} channels would have {n * (n - 1) // 2:,} comparators, more than the "
+                         f"{MAX_COMPARATORS:,} supported")
     try:
         return FAMILIES[name](n)
     except ValueError as error:

@@ -1,0 +1,174 @@
+"""The command line: parse arguments, call the library, print a report, return the exit status.
+
+``main(argv)`` never raises for bad input or bad options; it returns the exit
+status (0 proved, 1 refuted, 2 error, 3 unknown).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+from typing import Sequence, TextIO
+
+from sortcheck import __version__
+from sortcheck.engines import ENGINE_NAMES
+from sortcheck.errors import SortcheckError, UsageError
+from sortcheck.load import dump_netlist, read_netlist
+from sortcheck.model import parse_property
+from sortcheck.model.families import FAMILIES, build_family
+from sortcheck.report import (
+    EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
+    stats_report, summarise,
+)
+from sortcheck.report.text import describe_netlist
+
+
+class _Parser(argparse.ArgumentParser):
+    """An argument parser that raises instead of exiting, so ``main`` returns the status."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        raise UsageError(message)
+
+
+def _positive_seconds(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a number of seconds, got {text!r}") from None
+    if not value > 0 or value == float("inf"):
+        raise argparse.ArgumentTypeError(f"expected a positive number of seconds, got {text!r}")
+    return value
+
+
+def _size(text: str) -> int:
+    if not text.isdigit():
+        raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}")
+    return int(text)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="sortcheck", description="Prove that comparator networks and sorting circuits "
+                     "sort, merge, select or take the median, or find an input that breaks them.")
+    parser.add_argument("--version", action="version", version=f"sortcheck {__version__}")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    check = commands.add_parser("check", help="prove a property of netlists or find a counterexample")
+    check.add_argument("paths", nargs="+", metavar="PATH", help="netlist files (format version 1)")
+    check.add_argument("--property", metavar="SPEC",
+                       help="property to check: sorts, sorts:desc, merges:M, selects:T[:sorted], median, "
+                            "partial-sort:K[:stable], or a JSON object (default: the file's own, else sorts)")
+    check.add_argument("--engine", choices=ENGINE_NAMES, default="auto", help="engine to use (default: auto)")
+    check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
+                       help="time budget per file; a check that runs out is 'unknown' (exit 3)")
+    check.add_argument("--format", choices=("text", "json"), default="text", help="report format")
+    check.add_argument("--output", metavar="FILE", help="write the report to FILE (a text report still "
+                                                        "goes to the terminal)")
+
+    stats = commands.add_parser("stats", help="print size, depth and other figures of netlists")
+    stats.add_argument("paths", nargs="+", metavar="PATH")
+    stats.add_argument("--format", choices=("text", "json"), default="text")
+
+    build = commands.add_parser("build", help="write a reference comparator network")
+    build.add_argument("family", choices=sorted(FAMILIES), metavar="FAMILY",
+                       help=f"one of {', '.join(sorted(FAMILIES))}")
+    build.add_argument("channels", type=_size, metavar="N", help="number of channels")
+    build.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+    return parser
+
+
+def _write(path: str, text: str) -> None:
+    try:
+        Path(path).write_text(text, encoding="utf-8")
+    except OSError as error:
+        raise UsageError(f"cannot write: {error.strerror or error}", path) from None
+
+
+def _report_errors(results: Sequence[FileResult], stderr: TextIO) -> None:
+    for result in results:
+        if result.error is not None:
+            print(f"error: {result.error}", file=stderr)
+
+
+def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    prop = parse_property(args.property) if args.property is not None else None
+    results = [check_file(path, prop, args.engine, args.timeout) for path in args.paths]
+    _report_errors(results, stderr)
+    text = format_text(results)
+    report = dumps(check_report(results)) if args.format == "json" else text
+    if args.output:
+        _write(args.output, report)
+        stdout.write(text)
+    else:
+        stdout.write(report)
+    return exit_status(summarise(results))
+
+
+def _stats_result(path: str) -> FileResult:
+    try:
+        netlist = read_netlist(path)
+    except SortcheckError as error:
+        return FileResult(path, error=error)
+    return FileResult(path, kind_of(netlist), stats=netlist.stats())
+
+
+def _stats_line(result: FileResult) -> str:
+    if result.error is not None:
+        return f"ERROR    {result.error}"
+    line = f"{result.path}: {result.kind}, {describe_netlist(result.stats, result.kind)}"
+    if result.kind == "gate-circuit":
+        line += " (" + ", ".join(f"{op} {count}" for op, count in result.stats["ops"].items()) + ")"
+    elif result.stats["reversed_comparators"]:
+        line += f" ({result.stats['reversed_comparators']} reversed)"
+    return line
+
+
+def run_stats(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    results = [_stats_result(path) for path in args.paths]
+    _report_errors(results, stderr)
+    if args.format == "json":
+        stdout.write(dumps(stats_report(results)))
+    else:
+        stdout.write("".join(_stats_line(result) + "\n" for result in results))
+    return EXIT_ERROR if any(result.error for result in results) else EXIT_PROVED
+
+
+def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    network = build_family(args.family, args.channels)
+    text = dump_netlist(network)
+    if args.output:
+        _write(args.output, text)
+        print(f"wrote {args.output}: {network.name}, {network.channels} channels, {network.size} comparators, "
+              f"depth {network.depth}", file=stderr)
+    else:
+        stdout.write(text)
+    return EXIT_PROVED
+
+
+COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build}
+
+
+def main(argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr: TextIO | None = None) -> int:
+    """Run sortcheck with ``argv`` (default: the process arguments) and return the exit status."""
+    stdout = stdout or sys.stdout
+    stderr = stderr or sys.stderr
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+        if args.command is None:
+            parser.print_help(stderr)
+            return EXIT_ERROR
+        return COMMANDS[args.command](args, stdout, stderr)
+    except SystemExit as exit_request:  # --help and --version
+        return int(exit_request.code or 0)
+    except SortcheckError as error:
+        print(f"sortcheck: error: {error}", file=stderr)
+        return EXIT_ERROR
+    except KeyboardInterrupt:
+        print("sortcheck: interrupted", file=stderr)
+        return 130
+
+
+def run() -> None:
+    """Entry point of the ``sortcheck`` console script."""
+    sys.exit(main())

@@ -1,0 +1,76 @@
+"""Engines: one interface, chosen by name or by ``auto``.
+
+>>> from sortcheck.model import ComparatorNetwork, Sorts
+>>> verdict = check(ComparatorNetwork(2, ((0, 1),)), Sorts())
+>>> verdict.status.value, verdict.engine
+('proved', 'enumerate')
+"""
+
+from __future__ import annotations
+
+import time
+
+from sortcheck.engines.base import Budget, Counterexample, Engine, Status, StopReason, Verdict
+from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.errors import UsageError
+from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Netlist, Property, check_fits
+
+ENGINES: dict[str, Engine] = {"enumerate": EnumerateEngine()}
+
+#: Names accepted by ``--engine``.
+ENGINE_NAMES = ("auto", *ENGINES)
+
+
+def get_engine(name: str) -> Engine:
+    """The engine registered under ``name``; the error lists what is available."""
+    try:
+        return ENGINES[name]
+    except KeyError:
+        raise UsageError(f"unknown engine {name!r} (available: {', '.join(ENGINE_NAMES)})", "--engine") from None
+
+
+def choose_engine(netlist: Netlist, prop: Property) -> tuple[Engine | None, StopReason | None, str]:
+    """Pick an engine for ``auto`` and say why.
+
+    Returns the engine (None when none can take the check), the stop reason
+    of the refusal (None when an engine was chosen) and the reason in words.
+    """
+    refusals = []
+    for engine in ENGINES.values():
+        refused = engine.refusal(netlist, prop)
+        if refused is None:
+            kind = "comparator network" if isinstance(netlist, ComparatorNetwork) else "gate circuit"
+            return engine, None, f"auto chose {engine.name}: it covers {prop.name} on this {kind} completely"
+        refusals.append(refused)
+    if not isinstance(netlist, ComparatorNetwork):
+        return None, StopReason.UNSUPPORTED, ("gate circuits are loaded and measured, but no engine in this "
+                                              "version checks them")
+    stop = StopReason.SIZE_LIMIT if any(r[0] == StopReason.SIZE_LIMIT for r in refusals) else StopReason.UNSUPPORTED
+    return None, stop, "; ".join(reason for _, reason in refusals)
+
+
+def check(netlist: Netlist, prop: Property | None = None, engine: str = "auto",
+          timeout: float | None = None, source: str | None = None) -> Verdict:
+    """Check ``netlist`` for ``prop`` (default: what the netlist claims, else ``sorts``).
+
+    Raises :class:`~sortcheck.errors.PropertyError` when the property does not
+    fit the netlist; every other outcome, including running out of time, is a
+    :class:`Verdict`.
+    """
+    started = time.perf_counter()
+    prop = prop or netlist.claim or DEFAULT_PROPERTY
+    check_fits(prop, netlist, source)
+    budget = Budget.of(timeout)
+    if engine == "auto":
+        chosen, stop, reason = choose_engine(netlist, prop)
+        if chosen is None:
+            return Verdict(Status.UNKNOWN, "auto", prop, stop, f"nothing was checked: {reason}",
+                           time.perf_counter() - started, engine_reason=reason)
+    else:
+        chosen, reason = get_engine(engine), f"requested with --engine {engine}"
+    verdict = chosen.check(netlist, prop, budget)
+    return verdict.with_choice(reason, time.perf_counter() - started)
+
+
+__all__ = ["Budget", "Counterexample", "Engine", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",
+           "check", "choose_engine", "get_engine"]

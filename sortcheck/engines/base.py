@@ -1,0 +1,142 @@
+"""What every engine shares: verdicts as data, budgets, and the engine interface.
+
+Engines never print and never raise for a check they cannot finish: they
+return a :class:`Verdict` whose status is ``unknown`` and whose
+:class:`StopReason` says why.
+"""
+
+from __future__ import annotations
+
+import enum
+import time
+from dataclasses import dataclass, field
+from typing import Any, Protocol
+
+from sortcheck.model import Netlist, Property
+
+
+class Status(enum.Enum):
+    """The answer of a check."""
+
+    PROVED = "proved"
+    REFUTED = "refuted"
+    UNKNOWN = "unknown"
+
+
+class StopReason(enum.Enum):
+    """Why an engine stopped."""
+
+    COVERED = "covered"
+    COUNTEREXAMPLE = "counterexample"
+    TIMEOUT = "timeout"
+    SIZE_LIMIT = "size-limit"
+    UNSUPPORTED = "unsupported"
+
+    def describe(self) -> str:
+        """A short phrase for people.
+
+        >>> StopReason.TIMEOUT.describe()
+        'the time budget ran out'
+        """
+        return {
+            StopReason.COVERED: "every input in scope was covered",
+            StopReason.COUNTEREXAMPLE: "a counterexample was found",
+            StopReason.TIMEOUT: "the time budget ran out",
+            StopReason.SIZE_LIMIT: "the netlist is beyond this engine's size limit",
+            StopReason.UNSUPPORTED: "this engine does not handle this netlist or property",
+        }[self]
+
+
+@dataclass(frozen=True)
+class Counterexample:
+    """An input the netlist gets wrong, and what the netlist computes on it.
+
+    ``domain`` is ``"0-1"`` for a 0-1 input of a comparator network (which by
+    the 0-1 principle stands for every input with the same order pattern) and
+    ``"words"`` for input words of a gate circuit.
+    """
+
+    input: tuple[int, ...]
+    output: tuple[int, ...]
+    domain: str
+    violation: str
+
+    def to_json(self) -> dict[str, Any]:
+        return {"input": list(self.input), "output": list(self.output), "domain": self.domain,
+                "violation": self.violation}
+
+
+@dataclass(frozen=True)
+class Verdict:
+    """The outcome of one check of one netlist for one property.
+
+    Parameters
+    ----------
+    status : Status
+        proved, refuted or unknown.
+    engine : str
+        The engine that decided.
+    prop : Property
+        The property that was checked.
+    stop : StopReason
+        Why the engine stopped.
+    scope : str
+        In plain words, what this verdict covers (and, for unknown, what was
+        covered before it stopped).
+    seconds : float
+        Wall time of the check.
+    counterexample : Counterexample or None
+        Present exactly when the status is refuted.
+    figures : dict
+        Engine figures (vectors evaluated, blocks, ...), JSON-ready.
+    """
+
+    status: Status
+    engine: str
+    prop: Property
+    stop: StopReason
+    scope: str
+    seconds: float = 0.0
+    counterexample: Counterexample | None = None
+    figures: dict[str, Any] = field(default_factory=dict)
+    engine_reason: str | None = None
+
+    def with_choice(self, reason: str, seconds: float) -> "Verdict":
+        """A copy that records why the engine was chosen and the total time."""
+        return Verdict(self.status, self.engine, self.prop, self.stop, self.scope, seconds, self.counterexample,
+                       self.figures, reason)
+
+
+@dataclass(frozen=True)
+class Budget:
+    """Limits for one check: a wall-clock deadline (monotonic seconds) or none.
+
+    >>> Budget.of(None).expired()
+    False
+    """
+
+    deadline: float | None = None
+
+    @classmethod
+    def of(cls, timeout: float | None) -> "Budget":
+        return cls(None if timeout is None else time.monotonic() + timeout)
+
+    def expired(self) -> bool:
+        return self.deadline is not None and time.monotonic() >= self.deadline
+
+    def remaining(self) -> float | None:
+        return None if self.deadline is None else max(0.0, self.deadline - time.monotonic())
+
+
+class Engine(Protocol):
+    """The interface of every engine.
+
+    ``refusal`` says, without doing the work, why the engine cannot take a
+    check (None when it can); ``check`` does it within the budget.
+    """
+
+    name: str
+
+    def refusal(self, netlist: Netlist, prop: Property) -> tuple[StopReason, str] | None: ...
+
+    def check(self, netlist: Netlist, prop: Property, budget: Budget) -> Verdict: ...

@@ -1,0 +1,126 @@
+"""Results of checking files: one :class:`FileResult` per file, and the exit status.
+
+A file that cannot be read or does not fit its property becomes an ``error``
+result; the run goes on with the next file.
+"""
+
+from __future__ import annotations
+
+import time
+import traceback
+from dataclasses import dataclass
+from typing import Any, Iterable
+
+from sortcheck.engines import Verdict, check
+from sortcheck.errors import SortcheckError
+from sortcheck.load import read_netlist
+from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, Netlist, Property, check_fits
+
+#: Exit statuses of ``sortcheck check`` (and ``stats``, which only uses 0 and 2).
+EXIT_PROVED, EXIT_REFUTED, EXIT_ERROR, EXIT_UNKNOWN = 0, 1, 2, 3
+
+VERDICTS = ("proved", "refuted", "unknown", "error")
+
+
+def kind_of(netlist: Netlist) -> str:
+    """The format's name for the kind of a netlist."""
+    return "comparator-network" if isinstance(netlist, ComparatorNetwork) else "gate-circuit"
+
+
+@dataclass(frozen=True)
+class FileResult:
+    """The outcome for one file: a verdict, or an error that kept it from being checked."""
+
+    path: str
+    kind: str | None = None
+    prop: Property | None = None
+    verdict: Verdict | None = None
+    error: SortcheckError | None = None
+    stats: dict[str, Any] | None = None
+    seconds: float = 0.0
+
+    @property
+    def status(self) -> str:
+        """``proved``, ``refuted``, ``unknown`` or ``error``."""
+        return "error" if self.verdict is None else self.verdict.status.value
+
+    def to_json(self) -> dict[str, Any]:
+        """The result object of the JSON report (fixed fields first, extras after)."""
+        verdict = self.verdict
+        counterexample = verdict.counterexample.to_json() if verdict and verdict.counterexample else None
+        error = None
+        if self.error is not None:
+            error = {"message": self.error.message, "where": self.error.where, "text": str(self.error)}
+        return {
+            "path": self.path,
+            "kind": self.kind,
+            "property": self.prop.to_json() if self.prop else None,
+            "verdict": self.status,
+            "engine": verdict.engine if verdict else None,
+            "seconds": round(self.seconds, 6),
+            "stats": self.stats,
+            "counterexample": counterexample,
+            "error": error,
+            "scope": verdict.scope if verdict else None,
+            "stop_reason": verdict.stop.value if verdict else None,
+            "engine_reason": verdict.engine_reason if verdict else None,
+            "figures": verdict.figures if verdict else None,
+        }
+
+
+def check_file(path: str, prop: Property | None = None, engine: str = "auto",
+               timeout: float | None = None) -> FileResult:
+    """Load one file and check it; never raises for bad input.
+
+    ``prop`` (from the command line) overrides the property the file claims;
+    with neither, ``sorts`` is checked.
+    """
+    started = time.perf_counter()
+    netlist = None
+    chosen = None
+    try:
+        netlist = read_netlist(path)
+        chosen = prop or netlist.claim or DEFAULT_PROPERTY
+        check_fits(chosen, netlist, path, where="--property" if prop else "property")
+        verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path)
+    except SortcheckError as error:
+        return _error_result(path, netlist, chosen, error, started)
+    except Exception as error:  # an internal bug: report it as an error result and go on
+        detail = traceback.format_exception_only(type(error), error)[-1].strip()
+        return _error_result(path, netlist, chosen, SortcheckError(f"internal error (please report): {detail}", path),
+                             started)
+    return FileResult(path, kind_of(netlist), chosen, verdict, None, netlist.stats(), time.perf_counter() - started)
+
+
+def _error_result(path: str, netlist: Netlist | None, prop: Property | None, error: SortcheckError,
+                  started: float) -> FileResult:
+    kind = kind_of(netlist) if netlist is not None else None
+    stats = netlist.stats() if netlist is not None else None
+    return FileResult(path, kind, prop, None, error, stats, time.perf_counter() - started)
+
+
+def summarise(results: Iterable[FileResult]) -> dict[str, int]:
+    """Count the results by verdict.
+
+    >>> summarise([FileResult("a.json")])
+    {'proved': 0, 'refuted': 0, 'unknown': 0, 'error': 1}
+    """
+    counts = dict.fromkeys(VERDICTS, 0)
+    for result in results:
+        counts[result.status] += 1
+    return counts
+
+
+def exit_status(summary: dict[str, int]) -> int:
+    """0 all proved; 1 some refuted; 3 some unknown and none refuted; 2 any error (2 wins).
+
+    >>> exit_status({"proved": 3, "refuted": 1, "unknown": 2, "error": 0})
+    1
+    """
+    if summary["error"]:
+        return EXIT_ERROR
+    if summary["refuted"]:
+        return EXIT_REFUTED
+    if summary["unknown"]:
+        return EXIT_UNKNOWN
+    return EXIT_PROVED

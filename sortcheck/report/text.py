@@ -1,0 +1,80 @@
+"""The text report, for people: the verdict first, then the counterexample, then the figures."""
+
+from __future__ import annotations
+
+from typing import Sequence
+
+from sortcheck.report.results import FileResult, summarise
+
+INDENT = " " * 9
+BITS_PER_LINE = 64
+
+
+def _zero_one_rows(values: Sequence[int]) -> list[str]:
+    """0-1 values as digit groups of 8, at most 64 a line.
+
+    >>> _zero_one_rows([0, 1] * 5)
+    ['01010101 01']
+    """
+    digits = "".join(str(v) for v in values)
+    lines = []
+    for start in range(0, len(digits), BITS_PER_LINE):
+        chunk = digits[start:start + BITS_PER_LINE]
+        lines.append(" ".join(chunk[i:i + 8] for i in range(0, len(chunk), 8)))
+    return lines or [""]
+
+
+def _word_rows(values: Sequence[int], width: int) -> list[str]:
+    cells = [str(v).rjust(width) for v in values]
+    per_line = max(1, 96 // (width + 1))
+    return [" ".join(cells[i:i + per_line]) for i in range(0, len(cells), per_line)] or [""]
+
+
+def value_rows(label: str, values: Sequence[int], domain: str, width: int = 1) -> list[str]:
+    """Lines showing one row of values under a label, continuation lines aligned."""
+    rows = _zero_one_rows(values) if domain == "0-1" else _word_rows(values, width)
+    return [f"{INDENT}{label:<7} {rows[0]}"] + [f"{INDENT}{'':<7} {row}" for row in rows[1:]]
+
+
+def describe_netlist(stats: dict | None, kind: str | None) -> str:
+    """``16 channels, 63 comparators, depth 10`` or ``4 words of 8 bits, 120 gates, depth 17``."""
+    if not stats:
+        return ""
+    if kind == "comparator-network":
+        return f"{stats['channels']} channels, {stats['size']} comparators, depth {stats['depth']}"
+    return f"{stats['words']} words of {stats['width']} bits, {stats['gates']} gates, depth {stats['depth']}"
+
+
+def format_result(result: FileResult) -> list[str]:
+    """The lines of one result."""
+    if result.verdict is None:
+        return [f"{'ERROR':<8} {result.error}"]
+    verdict = result.verdict
+    lines = [f"{result.status.upper():<8} {result.path}",
+             f"{INDENT}{verdict.prop.describe()}  [{describe_netlist(result.stats, result.kind)}]"]
+    example = verdict.counterexample
+    if example is not None:
+        width = max(len(str(v)) for v in (*example.input, *example.output))
+        lines += value_rows("input", example.input, example.domain, width)
+        lines += value_rows("output", example.output, example.domain, width)
+        lines.append(f"{INDENT}{example.violation}")
+    figures = verdict.figures
+    done = ""
+    if "vectors_evaluated" in figures:
+        done = f", {figures['vectors_evaluated']:,} of {figures['vectors_total']:,} 0-1 inputs evaluated"
+    lines.append(f"{INDENT}{verdict.engine} in {result.seconds:.2f} s{done}")
+    lines.append(f"{INDENT}{'covers' if verdict.status.value == 'proved' else 'note'}: {verdict.scope}")
+    return lines
+
+
+def format_summary(results: Sequence[FileResult]) -> str:
+    counts = summarise(results)
+    noun = "file" if len(results) == 1 else "files"
+    return (f"{len(results)} {noun}: {counts['proved']} proved, {counts['refuted']} refuted, "
+            f"{counts['unknown']} unknown, {counts['error']} error{'s' if counts['error'] != 1 else ''}")
+
+
+def format_text(results: Sequence[FileResult]) -> str:
+    """The whole text report."""
+    blocks = ["\n".join(format_result(result)) for result in results]
+    return "\n\n".join(blocks + [format_summary(results)]) + "\n"
