@@ -2,8 +2,8 @@
 
 Guards against what a hostile or broken file can do to a JSON parser:
 non-UTF-8 bytes, empty files, duplicate keys, ``NaN``, integers with
-thousands of digits, and nesting deep enough to exhaust the stack.  Nothing
-is ever evaluated.
+thousands of digits, numbers with a fraction or exponent, and nesting deep
+enough to exhaust the stack.  Nothing is ever evaluated.
 """
 
 from __future__ import annotations
@@ -29,6 +29,21 @@ class TooLargeInteger:
 
     def __repr__(self) -> str:
         return f"an integer of {len(self.literal.lstrip('-'))} digits"
+
+
+class NotAnInteger:
+    """Stands in for a number written with a fraction or an exponent (``4.5``, ``4.0``, ``1e3``).
+
+    Every number in the format is an integer.  JSON Schema counts ``4.0`` as
+    the integer 4, which would let a float reach the model; keeping such
+    numbers out of the data lets the schema check refuse them with their place.
+    """
+
+    def __init__(self, literal: str):
+        self.literal = literal
+
+    def __repr__(self) -> str:
+        return self.literal
 
 
 def _parse_int(literal: str) -> int | TooLargeInteger:
@@ -80,7 +95,7 @@ def load_json(text: str, source: str) -> Any:
     if not text.strip():
         raise NetlistError("empty file", source)
     try:
-        data = json.loads(text, parse_int=_parse_int, parse_constant=_reject_constant,
+        data = json.loads(text, parse_int=_parse_int, parse_float=NotAnInteger, parse_constant=_reject_constant,
                           object_pairs_hook=_unique_keys)
     except json.JSONDecodeError as error:
         reason = error.msg[0].lower() + error.msg[1:]

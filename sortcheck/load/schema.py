@@ -17,7 +17,7 @@ from typing import Any, Iterable
 import jsonschema
 
 from sortcheck.errors import NetlistError
-from sortcheck.load.decode import TooLargeInteger
+from sortcheck.load.decode import NotAnInteger, TooLargeInteger
 
 FORMAT_VERSION = 1
 KINDS = ("comparator-network", "gate-circuit")
@@ -53,7 +53,7 @@ def place(path: Iterable[Any]) -> str | None:
 
 
 def _show(value: Any) -> str:
-    if isinstance(value, TooLargeInteger):
+    if isinstance(value, (TooLargeInteger, NotAnInteger)):
         return repr(value)
     text = json.dumps(value, default=repr)
     return text if len(text) <= 40 else text[:37] + "..."

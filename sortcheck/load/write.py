@@ -1,7 +1,11 @@
 """Write models back as netlist format version 1 (the inverse of parsing).
 
-Comparator networks are written as greedy layers, one layer per line, so a
-diff of two networks reads layer by layer; gate circuits one gate per line.
+Comparator networks are written one layer per line, so a diff of two
+networks reads layer by layer; gate circuits one gate per line.  A written
+layer is a run of consecutive comparators on distinct channels, so reading
+the file back gives the comparators in their original order (the greedy
+layers of :attr:`ComparatorNetwork.layers` may reorder comparators on
+disjoint channels, which would change the network as a value).
 """
 
 from __future__ import annotations
@@ -24,6 +28,25 @@ def _header(netlist: Netlist, kind: str) -> list[str]:
     return lines
 
 
+def _runs(comparators: tuple[tuple[int, int], ...]) -> list[list[tuple[int, int]]]:
+    """Split comparators, in order, into runs in which no channel occurs twice.
+
+    >>> _runs(((0, 1), (2, 3), (1, 2), (3, 4)))
+    [[(0, 1), (2, 3)], [(1, 2), (3, 4)]]
+    >>> _runs(((0, 1), (1, 2), (3, 4)))
+    [[(0, 1)], [(1, 2), (3, 4)]]
+    """
+    runs: list[list[tuple[int, int]]] = []
+    used: set[int] = set()
+    for a, b in comparators:
+        if not runs or a in used or b in used:
+            runs.append([])
+            used = set()
+        runs[-1].append((a, b))
+        used.update((a, b))
+    return runs
+
+
 def _block(key: str, rows: list[str]) -> str:
     if not rows:
         return f'  "{key}": []'
@@ -40,7 +63,8 @@ def dump_netlist(netlist: Netlist) -> str:
     """
     if isinstance(netlist, ComparatorNetwork):
         lines = _header(netlist, "comparator-network") + [f'  "channels": {netlist.channels}']
-        lines.append(_block("layers", [json.dumps([list(pair) for pair in layer]) for layer in netlist.layers]))
+        lines.append(_block("layers", [json.dumps([list(pair) for pair in layer])
+                                       for layer in _runs(netlist.comparators)]))
     elif isinstance(netlist, GateCircuit):
         lines = _header(netlist, "gate-circuit")
         lines.append(_block("inputs", [json.dumps({"name": w.name, "width": w.width}) for w in netlist.inputs]))

@@ -221,6 +221,7 @@ def property_from_json(data: Any, source: str | None = None, where: str | None =
 _SHORT_FLAGS = {"sorts": {"asc", "desc", "signed"}, "merges": {"signed"}, "selects": {"sorted", "signed"},
                 "median": {"signed"}, "partial-sort": {"stable", "signed"}}
 _SHORT_NUMBER = {"merges": "split", "selects": "count", "partial-sort": "key_bits"}
+_MAX_SHORT_DIGITS = 18  # no count in a property comes close; longer digit strings would be slow to convert
 
 
 def parse_property(text: str, source: str = "--property") -> Property:
@@ -245,6 +246,8 @@ def parse_property(text: str, source: str = "--property") -> Property:
             data = json.loads(text)
         except ValueError as error:
             raise _fail(f"not a JSON object: {error}", None, source) from None
+        except RecursionError:
+            raise _fail("not a JSON object: nesting too deep", None, source) from None
         return property_from_json(data, source, where=None)
     name, *parts = text.split(":")
     if name not in PROPERTY_NAMES:
@@ -252,8 +255,11 @@ def parse_property(text: str, source: str = "--property") -> Property:
     data: dict[str, Any] = {"name": name}
     if name in _SHORT_NUMBER:
         key = _SHORT_NUMBER[name]
-        if not parts or not parts[0].isdigit():
+        number = parts[0] if parts else ""
+        if not (number.isascii() and number.isdigit()):
             raise _fail(f"{name!r} needs a {key.replace('_', ' ')}, as in {name}:4", None, source)
+        if len(number) > _MAX_SHORT_DIGITS:
+            raise _fail(f"{key} of {len(number)} digits is too large", None, source)
         data[key] = int(parts.pop(0))
     for flag in parts:
         if flag not in _SHORT_FLAGS[name]:
