@@ -11,8 +11,8 @@ __version__ = "0.1.0"
 
 from sortcheck.engines import Counterexample, Status, Verdict, check  # noqa: E402
 from sortcheck.errors import NetlistError, PropertyError, SortcheckError, UsageError  # noqa: E402
-from sortcheck.load import dump_netlist, parse_netlist, read_netlist, write_netlist  # noqa: E402
-from sortcheck.model import ComparatorNetwork, GateCircuit, parse_property  # noqa: E402
+from sortcheck.load import dump_netlist, parse_netlist, parse_property, read_netlist, write_netlist  # noqa: E402
+from sortcheck.model import ComparatorNetwork, GateCircuit  # noqa: E402
 
 load = read_netlist
 

@@ -14,8 +14,8 @@ from typing import Sequence, TextIO
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES
 from sortcheck.errors import SortcheckError, UsageError
-from sortcheck.load import dump_netlist, read_netlist
-from sortcheck.model import parse_property
+from sortcheck.load import dump_netlist, parse_property, read_netlist
+
 from sortcheck.model.families import FAMILIES, build_family
 from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,

@@ -9,7 +9,8 @@ from pathlib import Path
 import numpy as np
 
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
-from sortcheck.model import ComparatorNetwork, Merges, parse_property
+from sortcheck.load import parse_property
+from sortcheck.model import ComparatorNetwork, Merges
 from reference import breaks, run
 
 ENCODINGS = Path(__file__).resolve().parent.parent / "encodings"

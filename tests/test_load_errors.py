@@ -403,44 +403,45 @@ def test_output_bit_written_as_a_float_is_refused():
 
 # --- properties in the file ---------------------------------------------------------------------
 
-@pytest.mark.parametrize("prop, where, phrase, error_type", [
-    pytest.param({"name": "sortz"}, "property.name", 'got "sortz"', NetlistError, id="unknown-name"),
-    pytest.param({"order": "ascending"}, "property", "missing key 'name'", NetlistError, id="missing-name"),
-    pytest.param({"name": "sorts", "oder": "descending"}, "property", "unknown key 'oder'", NetlistError,
-                 id="unknown-key"),
+# Property objects in a file are checked before the schema, so every problem is a PropertyError
+# with a message that knows which property it is about.
+@pytest.mark.parametrize("prop, where, phrase", [
+    pytest.param({"name": "sortz"}, "property.name", 'unknown property "sortz"', id="unknown-name"),
+    pytest.param({"order": "ascending"}, "property", "missing key 'name'", id="missing-name"),
+    pytest.param({"name": "sorts", "oder": "descending"}, "property", "unknown key 'oder' for sorts (expected order, "
+                 "signed)", id="unknown-key"),
     pytest.param({"name": "median", "split": 1}, "property", "unknown key 'split' for median (expected signed)",
-                 PropertyError, id="key-of-another-property"),
-    pytest.param({"name": "merges", "split": "2"}, "property.split", 'expected an integer, got "2"', NetlistError,
+                 id="key-of-another-property"),
+    pytest.param({"name": "merges", "split": "2"}, "property.split", 'split must be an integer, got "2"',
                  id="split-string"),
-    pytest.param({"name": "merges", "split": True}, "property.split", "expected an integer, got true", NetlistError,
+    pytest.param({"name": "merges", "split": True}, "property.split", "split must be an integer, got true",
                  id="split-true"),
-    pytest.param({"name": "sorts", "signed": "yes"}, "property.signed", 'expected true or false, got "yes"',
-                 NetlistError, id="signed-string"),
-    pytest.param({"name": "selects", "count": 2, "sorted": 1}, "property.sorted", "expected true or false, got 1",
-                 NetlistError, id="sorted-number"),
-    pytest.param({"name": "sorts", "order": "up"}, "property.order", 'expected one of "ascending", "descending"',
-                 NetlistError, id="order"),
-    pytest.param({"name": "merges", "split": 0}, "property.split", "0 is below the minimum 1", NetlistError,
-                 id="split-0"),
-    pytest.param({"name": "selects", "count": -3}, "property.count", "-3 is below the minimum 1", NetlistError,
+    pytest.param({"name": "sorts", "signed": "yes"}, "property.signed", 'signed must be true or false, got "yes"',
+                 id="signed-string"),
+    pytest.param({"name": "selects", "count": 2, "sorted": 1}, "property.sorted", "sorted must be true or false, "
+                 "got 1", id="sorted-number"),
+    pytest.param({"name": "sorts", "order": "up"}, "property.order", 'order must be "ascending" or "descending"',
+                 id="order"),
+    pytest.param({"name": "merges", "split": 0}, "property.split", "split must be at least 1, got 0", id="split-0"),
+    pytest.param({"name": "selects", "count": -3}, "property.count", "count must be at least 1, got -3",
                  id="count-negative"),
-    pytest.param({"name": "merges"}, "property", "missing key 'split'", PropertyError, id="split-missing"),
-    pytest.param({"name": "partial-sort", "stable": True}, "property", "missing key 'key_bits'", PropertyError,
+    pytest.param({"name": "merges"}, "property", "missing key 'split'", id="split-missing"),
+    pytest.param({"name": "partial-sort", "stable": True}, "property", "missing key 'key_bits'",
                  id="key-bits-missing"),
-    pytest.param("sorts", "property", 'expected an object, got "sorts"', NetlistError, id="short-form-in-file"),
+    pytest.param("sorts", "property", 'a property must be an object, got "sorts"', id="short-form-in-file"),
 ])
-def test_property_errors_in_the_file(prop, where, phrase, error_type):
-    expect(text_of(network_doc(property=prop)), where, phrase, error_type)
+def test_property_errors_in_the_file(prop, where, phrase):
+    expect(text_of(network_doc(property=prop)), where, phrase, PropertyError)
 
 
 def test_property_errors_in_a_gate_circuit_file():
     expect(text_of(circuit_doc(property={"name": "partial-sort", "key_bits": 0})), "property.key_bits",
-           "below the minimum 1")
+           "key_bits must be at least 1, got 0", PropertyError)
 
 
 def test_property_number_written_as_a_float_is_refused():
     expect(with_raw(network_doc(property={"name": "merges", "split": "@HOLE@"}), "2.0"), "property.split",
-           "expected an integer, got 2.0")
+           "split must be an integer, got 2.0", PropertyError)
 
 
 # --- the fast bulk predicates are exactly the schema's item rules -------------------------------
@@ -619,3 +620,15 @@ def test_one_bad_layer_in_a_large_network_is_found():
     layers = [[[0, 1], [2, 3]] for _ in range(6000)]
     layers[5000] = [[0, 1], [2, -3]]
     expect(text_of(network_doc(comparators=None, layers=layers)), "layers[5000][1][1]", "channel -3 is negative")
+
+
+# --- unknown top-level keys ---------------------------------------------------------------------
+
+def test_a_misspelt_top_level_key_is_refused_with_a_suggestion():
+    # A misspelt "property" must not silently fall back to checking the default property.
+    expect(text_of(network_doc(propery={"name": "median"})), None, "unknown key 'propery' for a comparator-network "
+           "(did you mean 'property'?)")
+
+
+def test_keys_of_the_other_kind_are_refused():
+    expect(text_of(circuit_doc(channels=4)), None, "unknown key 'channels' for a gate-circuit")

@@ -7,9 +7,9 @@ import json
 import pytest
 
 from sortcheck.errors import PropertyError
-from sortcheck.load import parse_netlist
+from sortcheck.load import parse_netlist, parse_property
 from sortcheck.model import (
-    ComparatorNetwork, Median, Merges, PartialSort, Selects, Sorts, check_fits, parse_property, property_from_json,
+    ComparatorNetwork, Median, Merges, PartialSort, Selects, Sorts, check_fits, property_from_json,
 )
 
 from conftest import assert_error
@@ -72,7 +72,7 @@ def test_signed_is_written_only_when_true_except_for_sorts():
                  "partial-sort)", id="unknown-name"),
     pytest.param("", None, "unknown property ''", id="empty"),
     pytest.param("Sorts", None, "unknown property 'Sorts'", id="case"),
-    pytest.param("merges", None, "'merges' needs a split, as in merges:4", id="merges-without-split"),
+    pytest.param("merges", None, "'merges' needs a split position, as in merges:4", id="merges-without-split"),
     pytest.param("merges:", None, "'merges' needs a split", id="merges-empty-split"),
     pytest.param("merges:x", None, "'merges' needs a split", id="merges-word"),
     pytest.param("merges:-2", None, "'merges' needs a split", id="merges-negative"),
@@ -81,7 +81,7 @@ def test_signed_is_written_only_when_true_except_for_sorts():
     pytest.param("merges:" + "9" * 5000, None, "split of 5000 digits is too large", id="huge-split"),
     pytest.param("selects", None, "'selects' needs a count, as in selects:4", id="selects-without-count"),
     pytest.param("selects:sorted", None, "'selects' needs a count", id="selects-flag-first"),
-    pytest.param("partial-sort", None, "'partial-sort' needs a key bits", id="partial-sort-without-key-bits"),
+    pytest.param("partial-sort", None, "'partial-sort' needs a number of key bits", id="partial-sort-without-key-bits"),
     pytest.param("merges:0", "split", "split must be at least 1, got 0", id="split-0"),
     pytest.param("selects:0", "count", "count must be at least 1, got 0", id="count-0"),
     pytest.param("sorts:sorted", None, "unknown option 'sorted' in 'sorts:sorted' (allowed for sorts: asc, desc, "
@@ -92,9 +92,11 @@ def test_signed_is_written_only_when_true_except_for_sorts():
     pytest.param("merges:4:desc", None, "unknown option 'desc' in 'merges:4:desc' (allowed for merges: signed)",
                  id="merges-desc"),
     pytest.param("selects:2:stable", None, "allowed for selects: signed, sorted", id="selects-stable"),
-    pytest.param("{bad", None, "not a JSON object", id="bad-json"),
-    pytest.param('{"name": "sorts",}', None, "not a JSON object", id="trailing-comma"),
-    pytest.param("{" + '"a": {' * 100_000, None, "not a JSON object: nesting too deep", id="deep-json"),
+    pytest.param("{bad", "line 1, column 2", "not JSON", id="bad-json"),
+    pytest.param('{"name": "sorts",}', "line 1, column 18", "not JSON", id="trailing-comma"),
+    pytest.param("{" + '"a": {' * 100_000, None, "nesting too deep", id="deep-json"),
+    pytest.param('{"name": "merges", "split": 2, "split": 3}', None, "duplicate key 'split'", id="duplicate-key"),
+    pytest.param('{"name": "merges", "split": NaN}', None, "NaN is not a JSON number", id="nan"),
     pytest.param('{"name": "median", "count": 1}', None, "unknown key 'count' for median", id="json-unknown-key"),
     pytest.param('{"name": "sorts", "order": "up"}', "order", 'order must be "ascending" or "descending", got "up"',
                  id="json-order"),

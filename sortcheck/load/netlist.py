@@ -61,10 +61,9 @@ def parse_netlist(text: str | bytes, source: str = "<netlist>") -> Netlist:
     """
     data = load_json(decode_text(text, source), source)
     kind = check_header(data, source)
+    claim = property_from_json(data["property"], source, where="property") if "property" in data else None
     validate_shape(data, source)
-    metadata = {"name": data.get("name"), "description": data.get("description")}
-    if "property" in data:
-        metadata["claim"] = property_from_json(data["property"], source, where="property")
+    metadata = {"name": data.get("name"), "description": data.get("description"), "claim": claim}
     if kind == "comparator-network":
         return _build_network(data, source, metadata)
     return _build_circuit(data, source, metadata)

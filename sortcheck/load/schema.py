@@ -8,6 +8,7 @@ written as ``gates[2].in[1]``.
 
 from __future__ import annotations
 
+import difflib
 import itertools
 import json
 from functools import lru_cache
@@ -124,7 +125,7 @@ def check_header(data: Any, source: str) -> str:
     sortcheck.errors.NetlistError: net.json: sortcheck: unsupported format version 2 (this sortcheck reads version 1)
     """
     if not isinstance(data, dict):
-        raise NetlistError(f"the top level must be a JSON object, got {_TYPE_NAMES.get(_json_type(data), 'a value')}",
+        raise NetlistError(f"the top level must be a JSON object, got {_TYPE_NAMES.get(_json_type(data), 'null')}",
                            source)
     if "sortcheck" not in data:
         raise NetlistError('missing format version: add "sortcheck": 1', source)
@@ -188,8 +189,26 @@ def _without_valid_bulk(data: dict) -> dict:
     return slim
 
 
+TOP_LEVEL_KEYS = {
+    "comparator-network": ("sortcheck", "kind", "name", "description", "property", "channels", "comparators",
+                           "layers"),
+    "gate-circuit": ("sortcheck", "kind", "name", "description", "property", "inputs", "gates", "outputs"),
+}
+
+
+def _check_top_level_keys(data: dict, source: str) -> None:
+    """Refuse unknown top-level keys: a misspelt ``"property"`` must not silently change what is checked."""
+    known = TOP_LEVEL_KEYS[data["kind"]]
+    for key in data:
+        if key not in known:
+            close = difflib.get_close_matches(key, known, n=1)
+            hint = f"did you mean {close[0]!r}?" if close else f"expected {', '.join(known)}"
+            raise NetlistError(f"unknown key {key!r} for a {data['kind']} ({hint})", source)
+
+
 def validate_shape(data: dict, source: str) -> None:
     """Validate ``data`` against the schema; raise the most useful error with its place."""
+    _check_top_level_keys(data, source)
     if data.get("kind") == "comparator-network":
         has = [key for key in ("comparators", "layers") if key in data]
         if len(has) != 1:

@@ -22,7 +22,7 @@ from __future__ import annotations
 from typing import Callable
 
 from sortcheck.errors import UsageError
-from sortcheck.model.network import Comparator, ComparatorNetwork
+from sortcheck.model.network import Comparator, ComparatorNetwork, in_layer_order
 from sortcheck.model.properties import Sorts
 
 MAX_CHANNELS = 65536
@@ -48,8 +48,8 @@ def _is_power_of_two(n: int) -> bool:
 
 
 def _network(family: str, n: int, comparators: list[Comparator], description: str) -> ComparatorNetwork:
-    return ComparatorNetwork(n, tuple(comparators), name=f"{family}-{n}",
-                             description=description, claim=Sorts())
+    network = ComparatorNetwork(n, tuple(comparators), name=f"{family}-{n}", description=description, claim=Sorts())
+    return in_layer_order(network)
 
 
 def merge_exchange(n: int) -> ComparatorNetwork:

@@ -117,6 +117,22 @@ class ComparatorNetwork:
         return cls(channels, comparators, **metadata)
 
 
+def in_layer_order(network: ComparatorNetwork) -> ComparatorNetwork:
+    """The same network with its comparators listed layer by layer (greedy layers).
+
+    Reordering comparators on disjoint channels never changes what a network
+    computes, so the result is equivalent; written to a file, each line of
+    ``"layers"`` is then one greedy layer.
+
+    Examples
+    --------
+    >>> in_layer_order(ComparatorNetwork(5, ((0, 1), (1, 2), (3, 4)))).comparators
+    ((0, 1), (3, 4), (1, 2))
+    """
+    comparators = tuple(pair for layer in network.layers for pair in layer)
+    return ComparatorNetwork(network.channels, comparators, network.name, network.description, network.claim)
+
+
 def restrict_to_outputs(network: ComparatorNetwork, outputs: Iterable[int]) -> ComparatorNetwork:
     """Keep only the comparators that can influence the given output channels.
 

@@ -151,6 +151,14 @@ _ALLOWED_KEYS = {
 }
 
 
+def _show(value: Any) -> str:
+    """A value as the user wrote it (JSON where it is JSON; a loader's placeholder shows its literal)."""
+    try:
+        return json.dumps(value)
+    except TypeError:
+        return repr(value)
+
+
 def _fail(message: str, where: str | None, source: str | None) -> PropertyError:
     return PropertyError(message, source, where)
 
@@ -164,7 +172,7 @@ def _positive_int(data: dict, key: str, where: str | None, source: str | None) -
         raise _fail(f"missing key {key!r}", where, source)
     value = data[key]
     if isinstance(value, bool) or not isinstance(value, int):
-        raise _fail(f"{key} must be an integer, got {json.dumps(value)}", _join(where, key), source)
+        raise _fail(f"{key} must be an integer, got {_show(value)}", _join(where, key), source)
     if value < 1:
         raise _fail(f"{key} must be at least 1, got {value}", _join(where, key), source)
     return value
@@ -173,7 +181,7 @@ def _positive_int(data: dict, key: str, where: str | None, source: str | None) -
 def _flag(data: dict, key: str, where: str | None, source: str | None) -> bool:
     value = data.get(key, False)
     if not isinstance(value, bool):
-        raise _fail(f"{key} must be true or false, got {json.dumps(value)}", _join(where, key), source)
+        raise _fail(f"{key} must be true or false, got {_show(value)}", _join(where, key), source)
     return value
 
 
@@ -190,13 +198,13 @@ def property_from_json(data: Any, source: str | None = None, where: str | None =
     sortcheck.errors.PropertyError: net.json: property: unknown key 'oder' for sorts (expected order, signed)
     """
     if not isinstance(data, dict):
-        raise _fail(f"a property must be an object, got {json.dumps(data)}", where, source)
+        raise _fail(f"a property must be an object, got {_show(data)}", where, source)
     name = data.get("name")
     if name not in PROPERTY_NAMES:
         expected = ", ".join(PROPERTY_NAMES)
         if name is None:
             raise _fail(f"missing key 'name' (one of {expected})", where, source)
-        raise _fail(f"unknown property {json.dumps(name)} (expected one of {expected})", _join(where, "name"), source)
+        raise _fail(f"unknown property {_show(name)} (expected one of {expected})", _join(where, "name"), source)
     unknown = sorted(set(data) - _ALLOWED_KEYS[name] - {"name"})
     if unknown:
         allowed = ", ".join(sorted(_ALLOWED_KEYS[name]))
@@ -205,7 +213,7 @@ def property_from_json(data: Any, source: str | None = None, where: str | None =
     if name == "sorts":
         order = data.get("order", "ascending")
         if order not in ("ascending", "descending"):
-            raise _fail(f"order must be \"ascending\" or \"descending\", got {json.dumps(order)}", _join(where, "order"), source)
+            raise _fail(f"order must be \"ascending\" or \"descending\", got {_show(order)}", _join(where, "order"), source)
         return Sorts(signed=signed, order=order)
     if name == "merges":
         return Merges(signed=signed, split=_positive_int(data, "split", where, source))
@@ -216,60 +224,6 @@ def property_from_json(data: Any, source: str | None = None, where: str | None =
         return Median(signed=signed)
     return PartialSort(signed=signed, key_bits=_positive_int(data, "key_bits", where, source),
                        stable=_flag(data, "stable", where, source))
-
-
-_SHORT_FLAGS = {"sorts": {"asc", "desc", "signed"}, "merges": {"signed"}, "selects": {"sorted", "signed"},
-                "median": {"signed"}, "partial-sort": {"stable", "signed"}}
-_SHORT_NUMBER = {"merges": "split", "selects": "count", "partial-sort": "key_bits"}
-_MAX_SHORT_DIGITS = 18  # no count in a property comes close; longer digit strings would be slow to convert
-
-
-def parse_property(text: str, source: str = "--property") -> Property:
-    """Parse a property given on the command line: a short form or a JSON object.
-
-    Examples
-    --------
-    >>> parse_property("sorts:desc").to_json()
-    {'name': 'sorts', 'order': 'descending', 'signed': False}
-    >>> parse_property("selects:3:sorted").to_json()
-    {'name': 'selects', 'count': 3, 'sorted': True}
-    >>> parse_property('{"name": "median"}')
-    Median(signed=False)
-    >>> parse_property("merges")
-    Traceback (most recent call last):
-    ...
-    sortcheck.errors.PropertyError: --property: 'merges' needs a split, as in merges:4
-    """
-    text = text.strip()
-    if text.startswith("{"):
-        try:
-            data = json.loads(text)
-        except ValueError as error:
-            raise _fail(f"not a JSON object: {error}", None, source) from None
-        except RecursionError:
-            raise _fail("not a JSON object: nesting too deep", None, source) from None
-        return property_from_json(data, source, where=None)
-    name, *parts = text.split(":")
-    if name not in PROPERTY_NAMES:
-        raise _fail(f"unknown property {name!r} (expected one of {', '.join(PROPERTY_NAMES)})", None, source)
-    data: dict[str, Any] = {"name": name}
-    if name in _SHORT_NUMBER:
-        key = _SHORT_NUMBER[name]
-        number = parts[0] if parts else ""
-        if not (number.isascii() and number.isdigit()):
-            raise _fail(f"{name!r} needs a {key.replace('_', ' ')}, as in {name}:4", None, source)
-        if len(number) > _MAX_SHORT_DIGITS:
-            raise _fail(f"{key} of {len(number)} digits is too large", None, source)
-        data[key] = int(parts.pop(0))
-    for flag in parts:
-        if flag not in _SHORT_FLAGS[name]:
-            allowed = ", ".join(sorted(_SHORT_FLAGS[name]))
-            raise _fail(f"unknown option {flag!r} in {text!r} (allowed for {name}: {allowed})", None, source)
-        if flag in ("asc", "desc"):
-            data["order"] = "ascending" if flag == "asc" else "descending"
-        else:
-            data[flag] = True
-    return property_from_json(data, source, where=None)
 
 
 def check_fits(prop: Property, netlist: ComparatorNetwork | GateCircuit, source: str | None,
