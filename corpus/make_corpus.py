@@ -2,7 +2,7 @@
 
 Run from the repository root: ``python corpus/make_corpus.py``.  The tests
 check that the committed files are what this script writes, and that each
-file gets the verdict listed in ``expected.json``.
+file gets the verdict listed in ``expected-verdicts.txt``.
 """
 
 from __future__ import annotations

@@ -27,5 +27,26 @@ def stats_report(results: Sequence[FileResult]) -> dict:
     return {"results": rows}
 
 
+def _encode(value: object, indent: int) -> str:
+    """JSON with objects spread over lines and lists of plain values kept on one line."""
+    pad = "  " * (indent + 1)
+    if isinstance(value, dict) and value:
+        items = [f"{pad}{json.dumps(key)}: {_encode(item, indent + 1)}" for key, item in value.items()]
+        return "{\n" + ",\n".join(items) + "\n" + "  " * indent + "}"
+    if isinstance(value, list) and any(isinstance(item, (dict, list)) for item in value):
+        return "[\n" + ",\n".join(pad + _encode(item, indent + 1) for item in value) + "\n" + "  " * indent + "]"
+    return json.dumps(value)
+
+
 def dumps(report: dict) -> str:
-    return json.dumps(report, indent=2) + "\n"
+    """The report as JSON text: readable, with counterexample vectors on one line each.
+
+    >>> print(dumps({"input": [1, 0], "summary": {"proved": 1}}), end="")
+    {
+      "input": [1, 0],
+      "summary": {
+        "proved": 1
+      }
+    }
+    """
+    return _encode(report, 0) + "\n"
