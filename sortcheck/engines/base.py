@@ -128,15 +128,37 @@ class Budget:
         return None if self.deadline is None else max(0.0, self.deadline - time.monotonic())
 
 
+@dataclass(frozen=True)
+class Options:
+    """What a user can ask of any engine beyond the property; engines ignore what does not apply.
+
+    Parameters
+    ----------
+    width : int or None
+        Word width for engines that work on words (``smt``); None for the
+        engine's default.
+    count : bool
+        Count every failing 0-1 input instead of stopping at the first
+        (``enumerate``); the count goes into ``figures["failing_inputs"]``.
+    """
+
+    width: int | None = None
+    count: bool = False
+
+
 class Engine(Protocol):
     """The interface of every engine.
 
     ``refusal`` says, without doing the work, why the engine cannot take a
     check (None when it can); ``check`` does it within the budget.
+    ``cooperative`` says whether ``check`` itself stops at the budget's
+    deadline; checks by engines that cannot (a solver stuck in native code)
+    are run in a process that can be ended.
     """
 
     name: str
+    cooperative: bool
 
-    def refusal(self, netlist: Netlist, prop: Property) -> tuple[StopReason, str] | None: ...
+    def refusal(self, netlist: Netlist, prop: Property, options: Options) -> tuple[StopReason, str] | None: ...
 
-    def check(self, netlist: Netlist, prop: Property, budget: Budget) -> Verdict: ...
+    def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options) -> Verdict: ...

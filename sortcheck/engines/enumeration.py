@@ -13,7 +13,7 @@ import time
 
 import numpy as np
 
-from sortcheck.engines.base import Budget, Counterexample, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property
 from sortcheck.model.semantics import violation
@@ -66,11 +66,13 @@ class EnumerateEngine:
     """
 
     name = "enumerate"
+    cooperative = True
 
     def __init__(self, max_vectors: int = MAX_VECTORS):
         self.max_vectors = max_vectors
 
-    def refusal(self, netlist: Netlist, prop: Property) -> tuple[StopReason, str] | None:
+    def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
+                ) -> tuple[StopReason, str] | None:
         if not isinstance(netlist, ComparatorNetwork):
             return StopReason.UNSUPPORTED, "enumerate checks comparator networks only"
         if isinstance(prop, PartialSort):
@@ -82,9 +84,9 @@ class EnumerateEngine:
                 f"{_limit_text(self.max_vectors)}; networks this large need the SAT engine (--engine sat)")
         return None
 
-    def check(self, netlist: Netlist, prop: Property, budget: Budget) -> Verdict:
+    def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
         started = time.perf_counter()
-        refused = self.refusal(netlist, prop)
+        refused = self.refusal(netlist, prop, options)
         if refused is not None:
             return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
                            time.perf_counter() - started)
