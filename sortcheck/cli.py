@@ -12,7 +12,7 @@ from pathlib import Path
 from typing import Sequence, TextIO
 
 from sortcheck import __version__
-from sortcheck.engines import ENGINE_NAMES
+from sortcheck.engines import ENGINE_NAMES, Options
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.load import dump_netlist, parse_property, read_netlist
 
@@ -21,6 +21,7 @@ from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
     stats_report, summarise,
 )
+from sortcheck.report.progress import for_file as progress_line
 from sortcheck.report.text import describe_netlist
 
 
@@ -39,6 +40,12 @@ def _positive_seconds(text: str) -> float:
     if not value > 0 or value == float("inf"):
         raise argparse.ArgumentTypeError(f"expected a positive number of seconds, got {text!r}")
     return value
+
+
+def _width(text: str) -> int:
+    if not text.isascii() or not text.isdigit() or not 1 <= int(text) <= 4096:
+        raise argparse.ArgumentTypeError(f"expected a width from 1 to 4096 bits, got {text!r}")
+    return int(text)
 
 
 def _size(text: str) -> int:
@@ -61,6 +68,12 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--engine", choices=ENGINE_NAMES, default="auto", help="engine to use (default: auto)")
     check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
                        help="time budget per file; a check that runs out is 'unknown' (exit 3)")
+    check.add_argument("--width", type=_width, metavar="BITS",
+                       help="word width for engines that work on words (smt); default: the smallest width that "
+                            "separates the channels' values")
+    check.add_argument("--count", action="store_true",
+                       help="count every failing 0-1 input instead of stopping at the first (enumerate)")
+    check.add_argument("--quiet", action="store_true", help="no progress display on standard error")
     check.add_argument("--format", choices=("text", "json"), default="text", help="report format")
     check.add_argument("--output", metavar="FILE", help="write the report to FILE (a text report still "
                                                         "goes to the terminal)")
@@ -92,7 +105,13 @@ def _report_errors(results: Sequence[FileResult], stderr: TextIO) -> None:
 
 def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     prop = parse_property(args.property) if args.property is not None else None
-    results = [check_file(path, prop, args.engine, args.timeout) for path in args.paths]
+    options = Options(width=args.width, count=args.count)
+    results = []
+    for path in args.paths:
+        progress = progress_line(stderr, path, args.quiet)
+        results.append(check_file(path, prop, args.engine, args.timeout, options, progress))
+        if progress is not None:
+            progress.clear()
     _report_errors(results, stderr)
     text = format_text(results)
     report = dumps(check_report(results)) if args.format == "json" else text

@@ -10,8 +10,9 @@ from __future__ import annotations
 
 import time
 
-from sortcheck.engines.base import Budget, Counterexample, Engine, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Engine, Options, Progress, Status, StopReason, Verdict
 from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.isolation import check_in_child
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Netlist, Property, check_fits
 
@@ -29,7 +30,8 @@ def get_engine(name: str) -> Engine:
         raise UsageError(f"unknown engine {name!r} (available: {', '.join(ENGINE_NAMES)})", "--engine") from None
 
 
-def choose_engine(netlist: Netlist, prop: Property) -> tuple[Engine | None, StopReason | None, str]:
+def choose_engine(netlist: Netlist, prop: Property, options: Options = Options()
+                  ) -> tuple[Engine | None, StopReason | None, str]:
     """Pick an engine for ``auto`` and say why.
 
     Returns the engine (None when none can take the check), the stop reason
@@ -37,7 +39,7 @@ def choose_engine(netlist: Netlist, prop: Property) -> tuple[Engine | None, Stop
     """
     refusals = []
     for engine in ENGINES.values():
-        refused = engine.refusal(netlist, prop)
+        refused = engine.refusal(netlist, prop, options)
         if refused is None:
             kind = "comparator network" if isinstance(netlist, ComparatorNetwork) else "gate circuit"
             return engine, None, f"auto chose {engine.name}: it covers {prop.name} on this {kind} completely"
@@ -50,27 +52,49 @@ def choose_engine(netlist: Netlist, prop: Property) -> tuple[Engine | None, Stop
 
 
 def check(netlist: Netlist, prop: Property | None = None, engine: str = "auto",
-          timeout: float | None = None, source: str | None = None) -> Verdict:
+          timeout: float | None = None, source: str | None = None, options: Options = Options(),
+          progress: Progress | None = None) -> Verdict:
     """Check ``netlist`` for ``prop`` (default: what the netlist claims, else ``sorts``).
 
-    Raises :class:`~sortcheck.errors.PropertyError` when the property does not
-    fit the netlist; every other outcome, including running out of time, is a
-    :class:`Verdict`.
+    Parameters
+    ----------
+    netlist : ComparatorNetwork or GateCircuit
+    prop : Property or None
+    engine : str
+        ``"auto"`` or a name in :data:`ENGINES`.
+    timeout : float or None
+        Seconds; the verdict is ``unknown`` when they run out, within about
+        a second whatever the engine.
+    source : str or None
+        File name for error messages.
+    options : Options
+        Engine options (word width, counting).
+    progress : callable or None
+        Progress callback, see :class:`Budget`.
+
+    Raises
+    ------
+    PropertyError
+        When the property does not fit the netlist; every other outcome,
+        including running out of time, is a :class:`Verdict`.
     """
     started = time.perf_counter()
     prop = prop or netlist.claim or DEFAULT_PROPERTY
     check_fits(prop, netlist, source)
-    budget = Budget.of(timeout)
+    budget = Budget.of(timeout, progress)
     if engine == "auto":
-        chosen, stop, reason = choose_engine(netlist, prop)
+        chosen, stop, reason = choose_engine(netlist, prop, options)
         if chosen is None:
             return Verdict(Status.UNKNOWN, "auto", prop, stop, f"nothing was checked: {reason}",
                            time.perf_counter() - started, engine_reason=reason)
     else:
         chosen, reason = get_engine(engine), f"requested with --engine {engine}"
-    verdict = chosen.check(netlist, prop, budget)
+    if chosen.cooperative or budget.deadline is None:
+        verdict = chosen.check(netlist, prop, budget, options)
+    else:
+        verdict = check_in_child(chosen, netlist, prop, budget, options)
     return verdict.with_choice(reason, time.perf_counter() - started)
 
 
-__all__ = ["Budget", "Counterexample", "Engine", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",
+__all__ = ["Budget", "Counterexample", "Engine", "Options", "Progress", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",
            "check", "choose_engine", "get_engine"]

@@ -10,7 +10,7 @@ from __future__ import annotations
 import enum
 import time
 from dataclasses import dataclass, field
-from typing import Any, Protocol
+from typing import Any, Callable, Protocol
 
 from sortcheck.model import Netlist, Property
 
@@ -107,25 +107,47 @@ class Verdict:
                        self.figures, reason)
 
 
+#: A progress callback: (units done, units in all or None, phase) -> None.
+Progress = Callable[[float, "float | None", str], None]
+
+
 @dataclass(frozen=True)
 class Budget:
-    """Limits for one check: a wall-clock deadline (monotonic seconds) or none.
+    """Limits for one check, and where to report progress.
+
+    Parameters
+    ----------
+    deadline : float or None
+        ``time.monotonic()`` value after which the check must stop.
+    progress : callable or None
+        Called now and then as ``progress(done, total, phase)``; engines call
+        :meth:`report`, which does nothing without a callback.
 
     >>> Budget.of(None).expired()
     False
     """
 
     deadline: float | None = None
+    progress: Progress | None = field(default=None, compare=False)
 
     @classmethod
-    def of(cls, timeout: float | None) -> "Budget":
-        return cls(None if timeout is None else time.monotonic() + timeout)
+    def of(cls, timeout: float | None, progress: Progress | None = None) -> "Budget":
+        return cls(None if timeout is None else time.monotonic() + timeout, progress)
 
     def expired(self) -> bool:
         return self.deadline is not None and time.monotonic() >= self.deadline
 
     def remaining(self) -> float | None:
         return None if self.deadline is None else max(0.0, self.deadline - time.monotonic())
+
+    def report(self, done: float, total: float | None, phase: str) -> None:
+        """Pass progress to the callback, if there is one."""
+        if self.progress is not None:
+            self.progress(done, total, phase)
+
+    def without_progress(self) -> "Budget":
+        """The same deadline with no callback (for work done in another process)."""
+        return Budget(self.deadline)
 
 
 @dataclass(frozen=True)

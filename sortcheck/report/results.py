@@ -11,7 +11,7 @@ import traceback
 from dataclasses import dataclass
 from typing import Any, Iterable
 
-from sortcheck.engines import Verdict, check
+from sortcheck.engines import Options, Progress, Verdict, check
 from sortcheck.errors import SortcheckError
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, Netlist, Property, check_fits
@@ -68,12 +68,13 @@ class FileResult:
         }
 
 
-def check_file(path: str, prop: Property | None = None, engine: str = "auto",
-               timeout: float | None = None) -> FileResult:
+def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
+               options: Options = Options(), progress: Progress | None = None) -> FileResult:
     """Load one file and check it; never raises for bad input.
 
     ``prop`` (from the command line) overrides the property the file claims;
-    with neither, ``sorts`` is checked.
+    with neither, ``sorts`` is checked.  ``options`` and ``progress`` go to
+    the engine (see :func:`sortcheck.engines.check`).
     """
     started = time.perf_counter()
     netlist = None
@@ -82,7 +83,8 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto",
         netlist = read_netlist(path)
         chosen = prop or netlist.claim or DEFAULT_PROPERTY
         check_fits(chosen, netlist, path, where="--property" if prop else "property")
-        verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path)
+        verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path, options=options,
+                        progress=progress)
     except SortcheckError as error:
         return _error_result(path, netlist, chosen, error, started)
     except Exception as error:  # an internal bug: report it as an error result and go on

@@ -63,6 +63,8 @@ def format_result(result: FileResult) -> list[str]:
     if "vectors_evaluated" in figures:
         done = f", {figures['vectors_evaluated']:,} of {figures['vectors_total']:,} 0-1 inputs evaluated"
     lines.append(f"{INDENT}{verdict.engine} in {result.seconds:.2f} s{done}")
+    if verdict.engine_reason:
+        lines.append(f"{INDENT}engine: {verdict.engine_reason}")
     lines.append(f"{INDENT}{'covers' if verdict.status.value == 'proved' else 'note'}: {verdict.scope}")
     return lines
 

@@ -1,0 +1,71 @@
+"""Budgets: a check that cannot finish in time comes back unknown, within the timeout plus a second."""
+
+from __future__ import annotations
+
+import time
+
+import pytest
+
+from sortcheck.engines import Budget, Options, Status, StopReason, Verdict, check
+from sortcheck.engines.isolation import EngineFailure, check_in_child
+from sortcheck.model import ComparatorNetwork, Sorts
+from sortcheck.model.families import build_family
+
+
+class StuckEngine:
+    """Stands for a solver stuck in native code: it ignores the deadline."""
+
+    name = "stuck"
+    cooperative = False
+
+    def refusal(self, netlist, prop, options):
+        return None
+
+    def check(self, netlist, prop, budget, options):
+        time.sleep(60)
+        raise AssertionError("unreachable")
+
+
+class QuickEngine(StuckEngine):
+    name = "quick"
+
+    def check(self, netlist, prop, budget, options):
+        return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, "everything", 0.0)
+
+
+class BrokenEngine(StuckEngine):
+    name = "broken"
+
+    def check(self, netlist, prop, budget, options):
+        raise ValueError("a bug inside the engine")
+
+
+NET = ComparatorNetwork(2, ((0, 1),))
+
+
+def test_a_stuck_engine_is_stopped_within_the_budget_plus_a_second():
+    seen = []
+    started = time.monotonic()
+    verdict = check_in_child(StuckEngine(), NET, Sorts(), Budget.of(0.3, lambda *args: seen.append(args)), Options())
+    elapsed = time.monotonic() - started
+    assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.TIMEOUT
+    assert "nothing is proved" in verdict.scope
+    assert elapsed < 1.3
+    assert seen and all(phase == "stuck: solving" for _, _, phase in seen)
+
+
+def test_an_answer_from_the_child_comes_back_unchanged():
+    verdict = check_in_child(QuickEngine(), NET, Sorts(), Budget.of(5), Options())
+    assert verdict.status == Status.PROVED and verdict.engine == "quick"
+
+
+def test_an_engine_bug_in_the_child_is_raised_in_the_parent():
+    with pytest.raises(EngineFailure, match="a bug inside the engine"):
+        check_in_child(BrokenEngine(), NET, Sorts(), Budget.of(5), Options())
+
+
+def test_enumerate_honours_a_tiny_timeout():
+    started = time.monotonic()
+    verdict = check(build_family("merge-exchange", 32), Sorts(), engine="enumerate", timeout=0.05)
+    assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.TIMEOUT
+    assert time.monotonic() - started < 1.05
