@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import argparse
 import sys
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import replace
 from pathlib import Path
 from typing import Sequence, TextIO
 
@@ -15,13 +17,16 @@ from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Options
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.load import dump_netlist, parse_property, read_netlist
+from sortcheck.load.config import CheckRequest, expand, read_project_config
 
 from sortcheck.model.families import FAMILIES, build_family
 from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
     stats_report, summarise,
 )
+from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line
+from sortcheck.report.sarif import sarif_report
 from sortcheck.report.text import describe_netlist
 
 
@@ -48,6 +53,12 @@ def _width(text: str) -> int:
     return int(text)
 
 
+def _jobs(text: str) -> int:
+    if not text.isascii() or not text.isdigit() or not 1 <= int(text) <= 1024:
+        raise argparse.ArgumentTypeError(f"expected a number of processes from 1 to 1024, got {text!r}")
+    return int(text)
+
+
 def _size(text: str) -> int:
     if not text.isdigit():
         raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}")
@@ -61,11 +72,13 @@ def build_parser() -> argparse.ArgumentParser:
     commands = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
 
     check = commands.add_parser("check", help="prove a property of netlists or find a counterexample")
-    check.add_argument("paths", nargs="+", metavar="PATH", help="netlist files (format version 1)")
+    check.add_argument("paths", nargs="*", metavar="PATH",
+                       help="netlist files or directories (every *.json below); none: the [tool.sortcheck] "
+                            "table of ./pyproject.toml")
     check.add_argument("--property", metavar="SPEC",
                        help="property to check: sorts, sorts:desc, merges:M, selects:T[:sorted], median, "
                             "partial-sort:K[:stable], or a JSON object (default: the file's own, else sorts)")
-    check.add_argument("--engine", choices=ENGINE_NAMES, default="auto", help="engine to use (default: auto)")
+    check.add_argument("--engine", choices=ENGINE_NAMES, help="engine to use (default: auto)")
     check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
                        help="time budget per file; a check that runs out is 'unknown' (exit 3)")
     check.add_argument("--width", type=_width, metavar="BITS",
@@ -74,7 +87,9 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--count", action="store_true",
                        help="count every failing 0-1 input instead of stopping at the first (enumerate)")
     check.add_argument("--quiet", action="store_true", help="no progress display on standard error")
-    check.add_argument("--format", choices=("text", "json"), default="text", help="report format")
+    check.add_argument("--jobs", type=_jobs, default=1, metavar="N", help="check N files at a time in "
+                       "separate processes (default: 1)")
+    check.add_argument("--format", choices=REPORT_FORMATS, default="text", help="report format")
     check.add_argument("--output", metavar="FILE", help="write the report to FILE (a text report still "
                                                         "goes to the terminal)")
 
@@ -103,21 +118,61 @@ def _report_errors(results: Sequence[FileResult], stderr: TextIO) -> None:
             print(f"error: {result.error}", file=stderr)
 
 
-def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    prop = parse_property(args.property) if args.property is not None else None
-    options = Options(width=args.width, count=args.count)
+REPORT_FORMATS = ("text", "json", "junit", "sarif")
+
+
+def _requests(args: argparse.Namespace) -> list[CheckRequest]:
+    """The files to check with their settings; command-line options override the configuration."""
+    if args.paths:
+        requests = []
+        for path in args.paths:
+            files = expand(path)
+            if not files:
+                raise UsageError("no netlist files (*.json) below this directory", path)
+            requests.extend(CheckRequest(file) for file in files)
+    else:
+        requests = read_project_config(".")
+    overrides = {"prop": parse_property(args.property) if args.property is not None else None,
+                 "engine": args.engine, "timeout": args.timeout, "width": args.width}
+    return [replace(request, **{key: value for key, value in overrides.items() if value is not None})
+            for request in requests]
+
+
+def _check_request(request: CheckRequest, count: bool, progress=None) -> FileResult:
+    options = Options(width=request.width, count=count)
+    return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress)
+
+
+def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
+    if args.jobs > 1 and len(requests) > 1:
+        with ProcessPoolExecutor(max_workers=min(args.jobs, len(requests))) as pool:
+            return list(pool.map(_check_request, requests, [args.count] * len(requests)))
     results = []
-    for path in args.paths:
-        progress = progress_line(stderr, path, args.quiet)
-        results.append(check_file(path, prop, args.engine, args.timeout, options, progress))
+    for request in requests:
+        progress = progress_line(stderr, request.path, args.quiet)
+        results.append(_check_request(request, args.count, progress))
         if progress is not None:
             progress.clear()
+    return results
+
+
+def _formatted(results: list[FileResult], report_format: str) -> str:
+    if report_format == "json":
+        return dumps(check_report(results))
+    if report_format == "junit":
+        return junit_report(results)
+    if report_format == "sarif":
+        return sarif_report(results)
+    return format_text(results)
+
+
+def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    results = _check_all(_requests(args), args, stderr)
     _report_errors(results, stderr)
-    text = format_text(results)
-    report = dumps(check_report(results)) if args.format == "json" else text
+    report = _formatted(results, args.format)
     if args.output:
         _write(args.output, report)
-        stdout.write(text)
+        stdout.write(format_text(results))
     else:
         stdout.write(report)
     return exit_status(summarise(results))

@@ -320,11 +320,23 @@ def test_bad_file_in_text_report_keeps_others(bad_files):
     assert path in result.stdout
 
 
-def test_directory_is_an_error(tmp_path):
+def test_a_directory_without_netlists_is_a_usage_error(tmp_path):
     result = run("check", str(tmp_path))
     assert result.status == 2
-    (line,) = error_lines(result.stderr)
-    assert line.startswith(f"error: {tmp_path}: ")
+    assert f"{tmp_path}: no netlist files" in result.stderr
+    assert result.stdout == ""
+
+
+def test_a_directory_stands_for_every_netlist_below_it(tmp_path):
+    (tmp_path / "deep").mkdir()
+    shutil.copy(MERGE_EXCHANGE_16, tmp_path / "a.json")
+    shutil.copy(BROKEN_INSERTION, tmp_path / "deep" / "b.json")
+    (tmp_path / "notes.txt").write_text("not a netlist")
+    result = run("check", str(tmp_path), "--format", "json")
+    assert result.status == 1
+    report = result.json()
+    assert [Path(r["path"]).relative_to(tmp_path).as_posix() for r in report["results"]] == ["a.json", "deep/b.json"]
+    assert report["summary"] == {"proved": 1, "refuted": 1, "unknown": 0, "error": 0}
 
 
 # --- usage errors ---------------------------------------------------------------------

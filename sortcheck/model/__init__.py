@@ -6,7 +6,7 @@ This is the vocabulary every stage shares; it does no input or output.
 from sortcheck.model.circuit import GateCircuit, Gate, OutputWord, Word, OP_ARITY, bit_name, evaluate_op
 from sortcheck.model.network import ComparatorNetwork, in_layer_order, restrict_to_outputs
 from sortcheck.model.properties import (
-    DEFAULT_PROPERTY, Median, Merges, PartialSort, Property, Selects, Sorts,
+    DEFAULT_PROPERTY, PROPERTY_NAMES, Median, Merges, PartialSort, Property, Selects, Sorts,
     check_fits, property_from_json,
 )
 
@@ -14,6 +14,6 @@ Netlist = ComparatorNetwork | GateCircuit
 
 __all__ = [
     "ComparatorNetwork", "GateCircuit", "Gate", "OutputWord", "Word", "Netlist", "OP_ARITY",
-    "Property", "Sorts", "Merges", "Selects", "Median", "PartialSort", "DEFAULT_PROPERTY",
+    "Property", "PROPERTY_NAMES", "Sorts", "Merges", "Selects", "Median", "PartialSort", "DEFAULT_PROPERTY",
     "bit_name", "evaluate_op", "check_fits", "in_layer_order", "property_from_json", "restrict_to_outputs",
 ]

@@ -13,6 +13,7 @@ from typing import Any, Iterable
 
 from sortcheck.engines import Options, Progress, Verdict, check
 from sortcheck.errors import SortcheckError
+from sortcheck.explain import Diagnosis, diagnose_network
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, Netlist, Property, check_fits
 
@@ -38,6 +39,7 @@ class FileResult:
     error: SortcheckError | None = None
     stats: dict[str, Any] | None = None
     seconds: float = 0.0
+    diagnosis: Diagnosis | None = None
 
     @property
     def status(self) -> str:
@@ -65,6 +67,7 @@ class FileResult:
             "stop_reason": verdict.stop.value if verdict else None,
             "engine_reason": verdict.engine_reason if verdict else None,
             "figures": verdict.figures if verdict else None,
+            "diagnosis": self.diagnosis.to_json() if self.diagnosis else None,
         }
 
 
@@ -91,7 +94,11 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
         detail = traceback.format_exception_only(type(error), error)[-1].strip()
         return _error_result(path, netlist, chosen, SortcheckError(f"internal error (please report): {detail}", path),
                              started)
-    return FileResult(path, kind_of(netlist), chosen, verdict, None, netlist.stats(), time.perf_counter() - started)
+    diagnosis = None
+    if isinstance(netlist, ComparatorNetwork) and verdict.counterexample and verdict.counterexample.domain == "0-1":
+        diagnosis = diagnose_network(netlist, chosen, verdict.counterexample.input)
+    return FileResult(path, kind_of(netlist), chosen, verdict, None, netlist.stats(), time.perf_counter() - started,
+                      diagnosis)
 
 
 def _error_result(path: str, netlist: Netlist | None, prop: Property | None, error: SortcheckError,

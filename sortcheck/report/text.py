@@ -58,6 +58,8 @@ def format_result(result: FileResult) -> list[str]:
         lines += value_rows("input", example.input, example.domain, width)
         lines += value_rows("output", example.output, example.domain, width)
         lines.append(f"{INDENT}{example.violation}")
+        if result.diagnosis is not None:
+            lines.append(f"{INDENT}where: {result.diagnosis.describe()}")
     figures = verdict.figures
     done = ""
     if "vectors_evaluated" in figures:
