@@ -9,12 +9,12 @@
 
 __version__ = "0.1.0"
 
-from sortcheck.engines import Counterexample, Status, Verdict, check  # noqa: E402
+from sortcheck.api import check, load  # noqa: E402
+from sortcheck.engines import Counterexample, Status, Verdict  # noqa: E402
 from sortcheck.errors import NetlistError, PropertyError, SortcheckError, UsageError  # noqa: E402
 from sortcheck.load import dump_netlist, parse_netlist, parse_property, read_netlist, write_netlist  # noqa: E402
 from sortcheck.model import ComparatorNetwork, GateCircuit  # noqa: E402
 
-load = read_netlist
 
 __all__ = ["__version__", "check", "load", "read_netlist", "parse_netlist", "dump_netlist", "write_netlist",
            "parse_property", "ComparatorNetwork", "GateCircuit", "Verdict", "Counterexample", "Status",
