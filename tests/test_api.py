@@ -7,6 +7,7 @@ from pathlib import Path
 import pytest
 
 import sortcheck
+from sortcheck.model.families import build_family
 from sortcheck.testing import assert_holds
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
@@ -51,7 +52,7 @@ def test_assert_holds_shows_the_counterexample():
 
 
 def test_assert_holds_does_not_pass_an_undecided_check():
-    wide = sortcheck.model.families.build_family("merge-exchange", 64)
+    wide = build_family("merge-exchange", 64)
     with pytest.raises(AssertionError, match="was not proved"):
         assert_holds(wide, "sorts", engine="enumerate")
 
