@@ -86,6 +86,8 @@ def build_parser() -> argparse.ArgumentParser:
                             "separates the channels' values")
     check.add_argument("--count", action="store_true",
                        help="count every failing 0-1 input instead of stopping at the first (enumerate)")
+    check.add_argument("--no-minimize", action="store_true",
+                       help="report the engine's first counterexample instead of a provably smallest one")
     check.add_argument("--quiet", action="store_true", help="no progress display on standard error")
     check.add_argument("--jobs", type=_jobs, default=1, metavar="N", help="check N files at a time in "
                        "separate processes (default: 1)")
@@ -138,19 +140,21 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
             for request in requests]
 
 
-def _check_request(request: CheckRequest, count: bool, progress=None) -> FileResult:
+def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=None) -> FileResult:
     options = Options(width=request.width, count=count)
-    return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress)
+    return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
+                      minimize)
 
 
 def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
     if args.jobs > 1 and len(requests) > 1:
         with ProcessPoolExecutor(max_workers=min(args.jobs, len(requests))) as pool:
-            return list(pool.map(_check_request, requests, [args.count] * len(requests)))
+            return list(pool.map(_check_request, requests, [args.count] * len(requests),
+                                 [not args.no_minimize] * len(requests)))
     results = []
     for request in requests:
         progress = progress_line(stderr, request.path, args.quiet)
-        results.append(_check_request(request, args.count, progress))
+        results.append(_check_request(request, args.count, not args.no_minimize, progress))
         if progress is not None:
             progress.clear()
     return results

@@ -53,17 +53,30 @@ class Counterexample:
 
     ``domain`` is ``"0-1"`` for a 0-1 input of a comparator network (which by
     the 0-1 principle stands for every input with the same order pattern) and
-    ``"words"`` for input words of a gate circuit.
+    ``"words"`` for input words of a gate circuit.  After minimisation
+    (:mod:`sortcheck.explain.minimal`) ``minimal`` says whether no failing
+    input is smaller, ``ones`` is the measure (ones or zeros, whichever is
+    fewer, for 0-1 inputs; one bits for words) and, for networks,
+    ``permutation`` is a failing input of distinct values.
     """
 
     input: tuple[int, ...]
     output: tuple[int, ...]
     domain: str
     violation: str
+    minimal: bool | None = None
+    ones: int | None = None
+    permutation: tuple[int, ...] | None = None
 
     def to_json(self) -> dict[str, Any]:
-        return {"input": list(self.input), "output": list(self.output), "domain": self.domain,
-                "violation": self.violation}
+        data: dict[str, Any] = {"input": list(self.input), "output": list(self.output), "domain": self.domain,
+                                "violation": self.violation}
+        if self.minimal is not None:
+            data["minimal"] = self.minimal
+            data["ones"] = self.ones
+        if self.permutation is not None:
+            data["permutation"] = list(self.permutation)
+        return data
 
 
 @dataclass(frozen=True)

@@ -8,12 +8,15 @@ from __future__ import annotations
 
 import time
 import traceback
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any, Iterable
 
-from sortcheck.engines import Options, Progress, Verdict, check
+from sortcheck.engines import Budget, Options, Progress, Verdict, check
 from sortcheck.errors import SortcheckError
-from sortcheck.explain import Diagnosis, diagnose_network
+from sortcheck.explain import (
+    Diagnosis, Trace, diagnose_network, minimize_network_counterexample, permutation_of, trace_network,
+)
+from sortcheck.explain.trace import fits_in_report
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, Netlist, Property, check_fits
 
@@ -40,6 +43,7 @@ class FileResult:
     stats: dict[str, Any] | None = None
     seconds: float = 0.0
     diagnosis: Diagnosis | None = None
+    trace: Trace | None = None
 
     @property
     def status(self) -> str:
@@ -68,16 +72,40 @@ class FileResult:
             "engine_reason": verdict.engine_reason if verdict else None,
             "figures": verdict.figures if verdict else None,
             "diagnosis": self.diagnosis.to_json() if self.diagnosis else None,
+            "trace": self.trace.to_json() if self.trace else None,
         }
 
 
+#: Seconds the minimisation of a counterexample may take when no timeout is given.
+MINIMIZE_SECONDS = 30.0
+
+
+def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeout: float | None
+                       ) -> tuple[Verdict, Diagnosis | None, Trace | None]:
+    """Minimise (unless asked not to), diagnose and trace the counterexample of a refuted network."""
+    example = verdict.counterexample
+    if not isinstance(netlist, ComparatorNetwork) or example is None or example.domain != "0-1":
+        return verdict, None, None
+    if minimize:
+        budget = Budget.of(timeout if timeout is not None else MINIMIZE_SECONDS)
+        example = minimize_network_counterexample(netlist, verdict.prop, example, budget)
+        verdict = replace(verdict, counterexample=example)
+    else:
+        example = replace(example, permutation=tuple(permutation_of(list(example.input))))
+        verdict = replace(verdict, counterexample=example)
+    trace = trace_network(netlist, example.input) if fits_in_report(netlist) else None
+    return verdict, diagnose_network(netlist, verdict.prop, example.input), trace
+
+
 def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
-               options: Options = Options(), progress: Progress | None = None) -> FileResult:
+               options: Options = Options(), progress: Progress | None = None, minimize: bool = True) -> FileResult:
     """Load one file and check it; never raises for bad input.
 
     ``prop`` (from the command line) overrides the property the file claims;
     with neither, ``sorts`` is checked.  ``options`` and ``progress`` go to
-    the engine (see :func:`sortcheck.engines.check`).
+    the engine (see :func:`sortcheck.engines.check`); a counterexample is
+    minimised unless ``minimize`` is false (within ``timeout`` again, or
+    :data:`MINIMIZE_SECONDS`), then diagnosed and traced.
     """
     started = time.perf_counter()
     netlist = None
@@ -88,17 +116,15 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
         check_fits(chosen, netlist, path, where="--property" if prop else "property")
         verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path, options=options,
                         progress=progress)
+        verdict, diagnosis, trace = explain_refutation(netlist, verdict, minimize, timeout)
     except SortcheckError as error:
         return _error_result(path, netlist, chosen, error, started)
     except Exception as error:  # an internal bug: report it as an error result and go on
         detail = traceback.format_exception_only(type(error), error)[-1].strip()
         return _error_result(path, netlist, chosen, SortcheckError(f"internal error (please report): {detail}", path),
                              started)
-    diagnosis = None
-    if isinstance(netlist, ComparatorNetwork) and verdict.counterexample and verdict.counterexample.domain == "0-1":
-        diagnosis = diagnose_network(netlist, chosen, verdict.counterexample.input)
     return FileResult(path, kind_of(netlist), chosen, verdict, None, netlist.stats(), time.perf_counter() - started,
-                      diagnosis)
+                      diagnosis, trace)
 
 
 def _error_result(path: str, netlist: Netlist | None, prop: Property | None, error: SortcheckError,

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from typing import Sequence
 
+from sortcheck.explain import Trace
 from sortcheck.report.results import FileResult, summarise
 
 INDENT = " " * 9
@@ -36,6 +37,20 @@ def value_rows(label: str, values: Sequence[int], domain: str, width: int = 1) -
     return [f"{INDENT}{label:<7} {rows[0]}"] + [f"{INDENT}{'':<7} {row}" for row in rows[1:]]
 
 
+TRACE_CHANNELS = 32
+
+
+def trace_rows(trace: Trace, domain: str) -> list[str]:
+    """The trace as one row per layer; ``*`` marks a layer in which a comparator swapped."""
+    width = max(len(str(v)) for row in trace.values for v in row)
+    lines = [f"{INDENT}trace   (values after each layer, * where a comparator swapped)"]
+    for layer, row in enumerate(trace.values):
+        label = "in" if layer == 0 else f"{layer - 1}{'*' if trace.swaps[layer - 1] else ''}"
+        text = "".join(map(str, row)) if domain == "0-1" else " ".join(str(v).rjust(width) for v in row)
+        lines.append(f"{INDENT}  {label:>5} {text}")
+    return lines
+
+
 def describe_netlist(stats: dict | None, kind: str | None) -> str:
     """``16 channels, 63 comparators, depth 10`` or ``4 words of 8 bits, 120 gates, depth 17``."""
     if not stats:
@@ -57,9 +72,17 @@ def format_result(result: FileResult) -> list[str]:
         width = max(len(str(v)) for v in (*example.input, *example.output))
         lines += value_rows("input", example.input, example.domain, width)
         lines += value_rows("output", example.output, example.domain, width)
+        if example.permutation is not None:
+            lines += value_rows("as", example.permutation, "words", max(len(str(v)) for v in example.permutation))
         lines.append(f"{INDENT}{example.violation}")
+        if example.minimal is not None:
+            side = "ones or zeros, whichever are fewer"
+            lines.append(f"{INDENT}{'smallest' if example.minimal else 'small (not proved smallest)'} "
+                         f"counterexample: {example.ones} {side}")
         if result.diagnosis is not None:
             lines.append(f"{INDENT}where: {result.diagnosis.describe()}")
+        if result.trace is not None and len(example.input) <= TRACE_CHANNELS:
+            lines += trace_rows(result.trace, example.domain)
     figures = verdict.figures
     done = ""
     if "vectors_evaluated" in figures:
