@@ -1,0 +1,7 @@
+(set-logic QF_BV)
+(declare-fun x0 () (_ BitVec 2))
+(declare-fun x1 () (_ BitVec 2))
+(declare-fun x2 () (_ BitVec 2))
+(declare-fun x3 () (_ BitVec 2))
+(assert (let ((.def_0 (bvult x3 x2))) (let ((.def_1 (ite .def_0 x3 x2))) (let ((.def_2 (bvult x1 x0))) (let ((.def_3 (ite .def_2 x1 x0))) (let ((.def_4 (bvult .def_1 .def_3))) (let ((.def_5 (ite .def_4 .def_3 .def_1))) (let ((.def_6 (ite .def_2 x0 x1))) (let ((.def_7 (ite .def_0 x2 x3))) (let ((.def_8 (bvult .def_7 .def_6))) (let ((.def_9 (ite .def_8 .def_7 .def_6))) (let ((.def_10 (bvult .def_5 .def_9))) (let ((.def_11 (ite .def_10 .def_9 .def_5))) (let ((.def_12 (ite .def_8 .def_6 .def_7))) (let ((.def_13 (bvult .def_12 .def_11))) (let ((.def_14 (ite .def_10 .def_5 .def_9))) (let ((.def_15 (bvult .def_11 .def_14))) (let ((.def_16 (ite .def_4 .def_1 .def_3))) (let ((.def_17 (bvult .def_14 .def_16))) (let ((.def_18 (or .def_17 .def_15 .def_13))) (let ((.def_19 (bvule .def_14 .def_12))) (let ((.def_20 (bvule .def_14 .def_11))) (let ((.def_21 (bvule .def_16 .def_11))) (let ((.def_22 (bvule .def_16 .def_14))) (let ((.def_23 (bvule .def_9 .def_12))) (let ((.def_24 (bvule .def_16 .def_12))) (let ((.def_25 (bvule .def_16 .def_9))) (let ((.def_26 (bvule .def_16 .def_7))) (let ((.def_27 (bvule .def_16 .def_5))) (let ((.def_28 (bvule .def_16 .def_6))) (let ((.def_29 (bvule .def_1 .def_7))) (let ((.def_30 (bvule .def_3 .def_6))) (let ((.def_31 (and .def_30 .def_29 .def_28 .def_27 .def_26 .def_25 .def_24 .def_23 .def_22 .def_21 .def_20 .def_19 .def_18))) .def_31)))))))))))))))))))))))))))))))))
+(check-sat)
