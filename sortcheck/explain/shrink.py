@@ -30,13 +30,17 @@ def zero_one_measure(vector: Sequence[int]) -> int:
     return min(ones, len(vector) - ones)
 
 
-def word_measure(words: Sequence[int]) -> int:
-    """The number of one bits over all words (negative values count their two's complement bits).
+def word_measure(words: Sequence[int], width: int | None = None) -> int:
+    """The number of one bits over all words; negative (signed) words count the bits of their ``width``-bit
+    two's complement.
 
-    >>> word_measure((3, 0, 4))
-    3
+    >>> word_measure((3, 0, 4)), word_measure((-1, 2), width=4)
+    (3, 5)
     """
-    return sum(bin(word).count("1") if word >= 0 else bin(~word).count("0") for word in words)
+    if width is None and any(word < 0 for word in words):
+        raise ValueError("negative words need the width of their two's complement")
+    mask = -1 if width is None else (1 << width) - 1
+    return sum(bin(word & mask).count("1") for word in words)
 
 
 def _first_failing(candidates: list[Vector], still_fails: Predicate) -> Vector | None:
