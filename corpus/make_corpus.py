@@ -11,9 +11,11 @@ import json
 from pathlib import Path
 
 from sortcheck.load import write_netlist
-from sortcheck.model import ComparatorNetwork, GateCircuit, Gate, Median, Merges, OutputWord, Selects, Word
+from sortcheck.model import ComparatorNetwork, GateCircuit, Gate, Median, Merges, OutputWord, Selects, Sorts, Word
 from sortcheck.model import restrict_to_outputs
+from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import build_family
+from sortcheck.model.lowering import lower_network
 
 HERE = Path(__file__).resolve().parent
 
@@ -50,7 +52,7 @@ def compare_and_swap_circuit() -> GateCircuit:
     return GateCircuit((Word("a", 2), Word("b", 2)), gates,
                        (OutputWord("low", ("min0", "min1")), OutputWord("high", ("max0", "max1"))),
                        name="compare-and-swap-2x2",
-                       description="Two 2-bit words sorted ascending by one compare-and-swap.")
+                       description="Two 2-bit words sorted ascending by one compare-and-swap.", claim=Sorts())
 
 
 def without(network: ComparatorNetwork, index: int, name: str, description: str) -> ComparatorNetwork:
@@ -62,6 +64,11 @@ def reversed_at(network: ComparatorNetwork, index: int, name: str, description: 
     a, b = network.comparators[index]
     comparators = network.comparators[:index] + ((b, a),) + network.comparators[index + 1:]
     return ComparatorNetwork(network.channels, comparators, name, description, network.claim)
+
+
+def flipped_gate(circuit: GateCircuit, out: str, op: str, name: str, description: str) -> GateCircuit:
+    gates = tuple(Gate(g.out, op, g.inputs) if g.out == out else g for g in circuit.gates)
+    return GateCircuit(circuit.inputs, gates, circuit.outputs, name, description, circuit.claim)
 
 
 def corpus() -> dict[str, ComparatorNetwork | GateCircuit]:
@@ -81,6 +88,12 @@ def corpus() -> dict[str, ComparatorNetwork | GateCircuit]:
     merger = odd_even_merger(8)
     files["odd-even-merger-8.json"] = merger
     files["compare-and-swap-2x2.json"] = compare_and_swap_circuit()
+    files["gates/merge-exchange-4-w8-mux.json"] = lower_network(build_family("merge-exchange", 4), 8, style="mux")
+    files["gates/counting-6-w2.json"] = counting_sorter(6, 2)
+    files["gates/bitonic-4-w3-and-or-signed.json"] = lower_network(build_family("bitonic", 4), 3, signed=True)
+    files["broken/compare-and-swap-2x2-flipped-gate.json"] = flipped_gate(
+        compare_and_swap_circuit(), "low_less", "or", "compare-and-swap-2x2-flipped-gate",
+        "The 2x2 compare-and-swap with its low-bit less-than gate turned from and into or.")
     files["broken/merge-exchange-16-missing-comparator.json"] = without(
         build_family("merge-exchange", 16), 40, "merge-exchange-16-missing-comparator",
         "Merge exchange on 16 channels with comparator 40 removed.")

@@ -33,6 +33,8 @@ MERGE_EXCHANGE_24 = str(CORPUS / "merge-exchange-24.json")
 MEDIAN_OF_9 = str(CORPUS / "median-of-9.json")
 MERGER_8 = str(CORPUS / "odd-even-merger-8.json")
 CIRCUIT = str(CORPUS / "compare-and-swap-2x2.json")
+# A correct sorter of 4 words of 8 bits: 32 input bits, beyond exhaustive simulation, so undecided.
+UNDECIDED = str(CORPUS / "gates" / "merge-exchange-4-w8-mux.json")
 BROKEN_INSERTION = str(CORPUS / "broken" / "insertion-6-truncated.json")
 BROKEN_MERGE_EXCHANGE = str(CORPUS / "broken" / "merge-exchange-16-missing-comparator.json")
 BROKEN_MEDIAN = str(CORPUS / "broken" / "median-of-9-missing-comparator.json")
@@ -225,15 +227,21 @@ def test_proved_and_refuted_exit_1():
 
 
 def test_refuted_and_unknown_exit_1():
-    result = run("check", CIRCUIT, BROKEN_MEDIAN, "--format", "json")
+    result = run("check", UNDECIDED, BROKEN_MEDIAN, "--format", "json")
     assert result.status == 1
     assert [r["verdict"] for r in result.json()["results"]] == ["unknown", "refuted"]
 
 
-def test_gate_circuit_alone_is_unknown_exit_3():
-    result = run("check", CIRCUIT)
+def test_undecided_gate_circuit_alone_is_unknown_exit_3():
+    result = run("check", UNDECIDED)
     assert result.status == 3
-    assert result.stdout.splitlines()[0].split() == ["UNKNOWN", CIRCUIT]
+    assert result.stdout.splitlines()[0].split() == ["UNKNOWN", UNDECIDED]
+
+
+def test_small_gate_circuit_is_proved_by_exhaustive_simulation():
+    result = run("check", CIRCUIT, "--format", "json")
+    assert result.status == 0
+    assert result.json()["results"][0]["engine"] == "simulate"
 
 
 def test_gate_circuit_with_enumerate_engine_is_unknown_exit_3():
@@ -241,7 +249,7 @@ def test_gate_circuit_with_enumerate_engine_is_unknown_exit_3():
 
 
 def test_proved_and_unknown_exit_3():
-    assert run("check", MERGE_EXCHANGE_16, CIRCUIT).status == 3
+    assert run("check", MERGE_EXCHANGE_16, UNDECIDED).status == 3
 
 
 def test_tiny_timeout_on_a_large_network_is_unknown_and_fast(tmp_path):
@@ -259,10 +267,10 @@ def test_tiny_timeout_on_a_large_network_is_unknown_and_fast(tmp_path):
 
 
 def test_network_beyond_the_size_limit_is_unknown_exit_3(tmp_path):
-    network = tmp_path / "merge-exchange-35.json"
-    assert run("build", "merge-exchange", "35", "--output", str(network)).status == 0
+    network = tmp_path / "merge-exchange-64.json"
+    assert run("build", "merge-exchange", "64", "--output", str(network)).status == 0
     started = time.perf_counter()
-    result = run("check", str(network), "--format", "json")
+    result = run("check", str(network), "--format", "json", "--engine", "enumerate")
     assert result.status == 3
     assert time.perf_counter() - started < 1.5
     assert result.json()["results"][0]["verdict"] == "unknown"
@@ -270,10 +278,10 @@ def test_network_beyond_the_size_limit_is_unknown_exit_3(tmp_path):
 
 def test_error_wins_over_every_other_verdict(tmp_path):
     missing = str(tmp_path / "missing.json")
-    result = run("check", MERGE_EXCHANGE_16, BROKEN_INSERTION, CIRCUIT, missing, "--format", "json")
+    result = run("check", MERGE_EXCHANGE_16, BROKEN_INSERTION, UNDECIDED, missing, "--format", "json")
     assert result.status == 2
     report = result.json()
-    check_report_shape(report, [MERGE_EXCHANGE_16, BROKEN_INSERTION, CIRCUIT, missing])
+    check_report_shape(report, [MERGE_EXCHANGE_16, BROKEN_INSERTION, UNDECIDED, missing])
     assert report["summary"] == {"proved": 1, "refuted": 1, "unknown": 1, "error": 1}
 
 
@@ -462,7 +470,7 @@ def test_median_on_nine_channels_fits_and_is_proved():
 # --- the JSON report ------------------------------------------------------------------
 
 def test_json_report_of_every_verdict():
-    paths = [MERGE_EXCHANGE_16, MEDIAN_OF_9, CIRCUIT, BROKEN_MERGE_EXCHANGE, BROKEN_BITONIC, BROKEN_MEDIAN,
+    paths = [MERGE_EXCHANGE_16, MEDIAN_OF_9, UNDECIDED, BROKEN_MERGE_EXCHANGE, BROKEN_BITONIC, BROKEN_MEDIAN,
              BROKEN_MERGER, BROKEN_INSERTION]
     result = run("check", *paths, "--format", "json")
     assert result.status == 1
@@ -479,7 +487,7 @@ def test_json_report_of_every_verdict():
         "channels": channels, "size": len(comparators), "depth": greedy_depth(channels, comparators)}
     assert by_path[MEDIAN_OF_9]["property"] == {"name": "median"}
     assert by_path[BROKEN_MERGER]["property"] == {"name": "merges", "split": 4}
-    circuit = by_path[CIRCUIT]
+    circuit = by_path[UNDECIDED]
     assert circuit["kind"] == "gate-circuit" and circuit["verdict"] == "unknown"
     for path in (BROKEN_MERGE_EXCHANGE, BROKEN_BITONIC, BROKEN_MEDIAN, BROKEN_MERGER, BROKEN_INSERTION):
         assert by_path[path]["verdict"] == "refuted"

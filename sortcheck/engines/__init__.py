@@ -12,11 +12,26 @@ import time
 
 from sortcheck.engines.base import Budget, Counterexample, Engine, Options, Progress, Status, StopReason, Verdict
 from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.gate_simulation import SimulateEngine
 from sortcheck.engines.isolation import check_in_child
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Netlist, Property, check_fits
 
-ENGINES: dict[str, Engine] = {"enumerate": EnumerateEngine()}
+#: Gate circuits with at most this many input bits are simulated on every input (2^24 inputs take
+#: seconds; the simulate engine itself accepts up to 62 bits when asked for).
+EXHAUSTIVE_GATE_BITS = 24
+
+ENGINES: dict[str, Engine] = {
+    "enumerate": EnumerateEngine(),
+    "simulate": SimulateEngine(max_exhaustive_bits=EXHAUSTIVE_GATE_BITS),
+}
+
+#: Why ``auto`` takes each engine, in words for the report.
+CHOICE_REASONS = {
+    "enumerate": "it evaluates every 0-1 input the property speaks about, which covers all inputs (0-1 principle)",
+    "simulate": (f"it simulates the gate circuit on every input when there are at most 2^{EXHAUSTIVE_GATE_BITS}, "
+                 "and on corner-case and random inputs otherwise (which can only refute)"),
+}
 
 #: Names accepted by ``--engine``.
 ENGINE_NAMES = ("auto", *ENGINES)
@@ -41,12 +56,8 @@ def choose_engine(netlist: Netlist, prop: Property, options: Options = Options()
     for engine in ENGINES.values():
         refused = engine.refusal(netlist, prop, options)
         if refused is None:
-            kind = "comparator network" if isinstance(netlist, ComparatorNetwork) else "gate circuit"
-            return engine, None, f"auto chose {engine.name}: it covers {prop.name} on this {kind} completely"
+            return engine, None, f"auto chose {engine.name}: {CHOICE_REASONS.get(engine.name, 'it takes this check')}"
         refusals.append(refused)
-    if not isinstance(netlist, ComparatorNetwork):
-        return None, StopReason.UNSUPPORTED, ("gate circuits are loaded and measured, but no engine in this "
-                                              "version checks them")
     stop = StopReason.SIZE_LIMIT if any(r[0] == StopReason.SIZE_LIMIT for r in refusals) else StopReason.UNSUPPORTED
     return None, stop, "; ".join(reason for _, reason in refusals)
 

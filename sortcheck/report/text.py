@@ -86,7 +86,8 @@ def format_result(result: FileResult) -> list[str]:
     figures = verdict.figures
     done = ""
     if "vectors_evaluated" in figures:
-        done = f", {figures['vectors_evaluated']:,} of {figures['vectors_total']:,} 0-1 inputs evaluated"
+        noun = "0-1 inputs" if result.kind == "comparator-network" else "inputs"
+        done = f", {figures['vectors_evaluated']:,} of {figures['vectors_total']:,} {noun} evaluated"
     lines.append(f"{INDENT}{verdict.engine} in {result.seconds:.2f} s{done}")
     if verdict.engine_reason:
         lines.append(f"{INDENT}engine: {verdict.engine_reason}")
