@@ -235,3 +235,12 @@ def test_compiled_kernel_on_a_large_broken_network():
     assert verdicts[0].figures["kernel"] == "numba"
     assert verdicts[0].figures["failing_inputs"] == verdicts[1].figures["failing_inputs"] > 0
     assert verdicts[0].counterexample == verdicts[1].counterexample
+
+
+def test_without_numba_the_numpy_path_runs(monkeypatch):
+    monkeypatch.setattr(compiled, "numba_module", lambda: None)
+    assert not compiled.available()
+    network = ComparatorNetwork(5, build_family("merge-exchange", 5).comparators[:-1])
+    verdict = EnumerateEngine(backend="numba").check(network, Sorts(), Budget())
+    assert verdict.figures["kernel"] == "numpy" and verdict.status == Status.REFUTED
+    assert redundant_comparators_by_enumeration(network, backend="numba") == brute_force_redundant(network)

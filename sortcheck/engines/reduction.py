@@ -37,7 +37,7 @@ from sortcheck.engines.base import Budget
 MAX_CHANNELS = 64
 
 #: A product of two groups is formed only if it has at most this many vectors.
-LARGEST_MERGE = 1 << 21
+LARGEST_MERGE = 1 << 20
 #: ... and at most the current number of vectors to evaluate over this (merging costs more per vector).
 MERGE_SHARE = 16
 #: Merges up to this size are always allowed.
