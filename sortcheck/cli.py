@@ -53,6 +53,12 @@ def _width(text: str) -> int:
     return int(text)
 
 
+def _words(text: str) -> int:
+    if not text.isascii() or not text.isdigit() or not 1 <= int(text) <= 65536:
+        raise argparse.ArgumentTypeError(f"expected a number of words from 1 to 65536, got {text!r}")
+    return int(text)
+
+
 def _jobs(text: str) -> int:
     if not text.isascii() or not text.isdigit() or not 1 <= int(text) <= 1024:
         raise argparse.ArgumentTypeError(f"expected a number of processes from 1 to 1024, got {text!r}")
@@ -81,9 +87,11 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--engine", choices=ENGINE_NAMES, help="engine to use (default: auto)")
     check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
                        help="time budget per file; a check that runs out is 'unknown' (exit 3)")
+    check.add_argument("--words", type=_words, metavar="N",
+                       help="AIGER and BLIF files: group their input and output bits into N words")
     check.add_argument("--width", type=_width, metavar="BITS",
-                       help="word width for engines that work on words (smt); default: the smallest width that "
-                            "separates the channels' values")
+                       help="AIGER and BLIF files: bits per word; comparator networks with --engine smt: the word "
+                            "width (default: the smallest that separates the channels' values)")
     check.add_argument("--count", action="store_true",
                        help="count every failing 0-1 input instead of stopping at the first (enumerate)")
     check.add_argument("--no-minimize", action="store_true",
@@ -130,12 +138,12 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
         for path in args.paths:
             files = expand(path)
             if not files:
-                raise UsageError("no netlist files (*.json) below this directory", path)
+                raise UsageError("no netlist files (*.json, *.aag, *.aig, *.blif) below this directory", path)
             requests.extend(CheckRequest(file) for file in files)
     else:
         requests = read_project_config(".")
     overrides = {"prop": parse_property(args.property) if args.property is not None else None,
-                 "engine": args.engine, "timeout": args.timeout, "width": args.width}
+                 "engine": args.engine, "timeout": args.timeout, "words": args.words, "width": args.width}
     return [replace(request, **{key: value for key, value in overrides.items() if value is not None})
             for request in requests]
 
@@ -143,7 +151,7 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
 def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=None) -> FileResult:
     options = Options(width=request.width, count=count)
     return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
-                      minimize)
+                      minimize, request.words)
 
 
 def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:

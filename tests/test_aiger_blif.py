@@ -20,7 +20,7 @@ from sortcheck.load import dump_netlist, parse_netlist
 from sortcheck.load.aiger import dump_aiger, dump_aiger_binary, parse_aiger, read_aiger
 from sortcheck.load.blif import dump_blif, parse_blif, read_blif
 from sortcheck.load.grouping import (
-    Grouping, choose_grouping, group_bits, parse_grouping, read_sidecar, sidecar_path,
+    Grouping, choose_grouping, group_bits, parse_grouping, read_sidecar, sidecar_paths, is_sidecar,
 )
 from sortcheck.model import OP_ARITY, GateCircuit, Gate, OutputWord, Sorts, Word, bit_name
 
@@ -365,7 +365,7 @@ def test_grouping_output_errors():
 def test_grouping_file():
     assert parse_grouping('{"width": 3}') == Grouping(None, 3)
     assert parse_grouping('{"words": 2, "property": {"name": "median"}}').claim.name == "median"
-    assert sidecar_path("a/b.blif").as_posix() == "a/b.blif.words"
+    assert [p.as_posix() for p in sidecar_paths("a/b.blif")] == ["a/b.blif.words", "a/b.blif.json", "a/b.json"]
     assert choose_grouping(Grouping(2, 2, Sorts()), 4, None) == Grouping(4, None, Sorts())
     assert choose_grouping(None, None, None) == Grouping()
     cases = [
@@ -385,14 +385,14 @@ def test_read_with_grouping_file_and_override(tmp_path):
     path = tmp_path / "c.blif"
     path.write_text(".inputs a b c d\n.outputs a b c d\n", encoding="utf-8")
     assert read_blif(path).widths == (1, 1, 1, 1)  # no grouping file: every bit is a word
-    sidecar_path(path).write_text('{"words": 2, "property": {"name": "sorts", "order": "descending"}}')
+    sidecar_paths(path)[0].write_text('{"words": 2, "property": {"name": "sorts", "order": "descending"}}')
     circuit = read_blif(path)
     assert circuit.widths == (2, 2) and circuit.claim == Sorts(order="descending")
     assert read_blif(path, width=1).widths == (1, 1, 1, 1) and read_blif(path, width=1).claim is not None
     assert read_sidecar(tmp_path / "none.aag") is None
     aag = tmp_path / "c.aag"
     aag.write_bytes(dump_aiger_binary(circuit))
-    sidecar_path(aag).write_text('{"words": 3}')
+    sidecar_paths(aag)[0].write_text('{"words": 3}')
     assert_error(lambda: read_aiger(aag), NetlistError, str(aag), "inputs", "4 input bits cannot form 3 words")
     assert read_aiger(aag, width=2).widths == (2, 2)
     assert_error(lambda: read_aiger(tmp_path / "missing.aag"), NetlistError, str(tmp_path / "missing.aag"),
@@ -513,3 +513,15 @@ HEAD = ".model m\n.inputs a b\n.outputs y\n"
 ])
 def test_blif_errors(text, where, phrase):
     expect_blif(text, where, phrase)
+
+
+def test_a_json_sidecar_beside_the_circuit_groups_its_bits_and_is_not_taken_for_a_netlist(tmp_path):
+    from sortcheck.load import read_netlist
+    from sortcheck.load.config import expand
+    circuit = tmp_path / "sorter.aag"
+    circuit.write_text((CORPUS / "compare-and-swap-2x2.aag").read_text())
+    (tmp_path / "sorter.json").write_text('{"words": 2, "width": 2}')
+    loaded = read_netlist(circuit)
+    assert (loaded.words, loaded.width) == (2, 2)
+    assert is_sidecar(tmp_path / "sorter.json") and not is_sidecar(CORPUS / "merge-exchange-16.json")
+    assert expand(str(tmp_path)) == [str(circuit)]

@@ -45,9 +45,9 @@ from dataclasses import dataclass, field
 import networkx as nx
 
 from sortcheck.errors import NetlistError
-from sortcheck.load.decode import decode_text
+from sortcheck.load.decode import decode_text, read_file_bytes
 from sortcheck.load.grouping import choose_grouping, describe_grouping, input_words, output_words, read_sidecar
-from sortcheck.load.grouping import read_circuit_bytes, show_cycle, some_cycle
+from sortcheck.load.grouping import show_cycle, some_cycle
 from sortcheck.model import GateCircuit, Gate, Property
 from sortcheck.model.circuit import Signal, bit_name
 
@@ -107,7 +107,7 @@ def parse_aiger(data: bytes | str, source: str = "<aiger>", words: int | None = 
 def read_aiger(path: str | os.PathLike, words: int | None = None, width: int | None = None) -> GateCircuit:
     """Read an AIGER file and its grouping file (``FILE.words``, if any); ``words``/``width`` override it."""
     grouping = choose_grouping(read_sidecar(path), words, width)
-    return parse_aiger(read_circuit_bytes(path), str(path), grouping.words, grouping.width, grouping.claim)
+    return parse_aiger(read_file_bytes(path), str(path), grouping.words, grouping.width, grouping.claim)
 
 
 def _count(count: int, noun: str) -> str:

@@ -50,9 +50,9 @@ from dataclasses import dataclass, field
 import networkx as nx
 
 from sortcheck.errors import NetlistError
-from sortcheck.load.decode import decode_text
+from sortcheck.load.decode import decode_text, read_file_bytes
 from sortcheck.load.grouping import (
-    choose_grouping, describe_grouping, group_bits, read_circuit_bytes, read_sidecar, show_cycle, some_cycle,
+    choose_grouping, describe_grouping, group_bits, read_sidecar, show_cycle, some_cycle,
 )
 from sortcheck.model import GateCircuit, Gate, Property
 from sortcheck.model.circuit import Signal, bit_name
@@ -308,7 +308,7 @@ def parse_blif(text: str | bytes, source: str = "<blif>", words: int | None = No
 def read_blif(path: str | os.PathLike, words: int | None = None, width: int | None = None) -> GateCircuit:
     """Read a BLIF file and its grouping file (``FILE.words``, if any); ``words``/``width`` override it."""
     grouping = choose_grouping(read_sidecar(path), words, width)
-    return parse_blif(read_circuit_bytes(path), str(path), grouping.words, grouping.width, grouping.claim)
+    return parse_blif(read_file_bytes(path), str(path), grouping.words, grouping.width, grouping.claim)
 
 
 # --- writing --------------------------------------------------------------------------------

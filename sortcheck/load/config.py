@@ -11,6 +11,8 @@ order.  With no path on the command line, ``sortcheck check`` reads the
 
 Each entry of ``paths`` is a path or a table with ``path`` and any of the
 per-path settings; relative paths are relative to the ``pyproject.toml``.
+``words`` and ``width`` group the bits of AIGER and BLIF files into words;
+``width`` is also the word width of word-level engines (``smt``).
 """
 
 from __future__ import annotations
@@ -21,13 +23,14 @@ from pathlib import Path
 from typing import Any
 
 from sortcheck.errors import UsageError
+from sortcheck.load.grouping import is_sidecar
 from sortcheck.load.property_text import parse_property
 from sortcheck.model import Property
 
-#: File name patterns a directory is searched for.
-NETLIST_PATTERNS = ("*.json",)
+#: File name patterns a directory is searched for (grouping files beside circuits are left out).
+NETLIST_PATTERNS = ("*.json", "*.aag", "*.aig", "*.blif")
 
-SETTINGS = ("property", "engine", "timeout", "width")
+SETTINGS = ("property", "engine", "timeout", "words", "width")
 
 
 @dataclass(frozen=True)
@@ -38,6 +41,7 @@ class CheckRequest:
     prop: Property | None = None
     engine: str | None = None
     timeout: float | None = None
+    words: int | None = None
     width: int | None = None
 
 
@@ -49,7 +53,8 @@ def expand(path: str) -> list[str]:
     directory = Path(path)
     if not directory.is_dir():
         return [path]
-    found = sorted({file for pattern in NETLIST_PATTERNS for file in directory.rglob(pattern) if file.is_file()})
+    found = sorted({file for pattern in NETLIST_PATTERNS for file in directory.rglob(pattern)
+                    if file.is_file() and not is_sidecar(file)})
     return [str(file) for file in found]
 
 
@@ -68,6 +73,10 @@ def _setting(table: dict[str, Any], key: str, source: str, where: str) -> Any:
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0 < value < float("inf"):
             raise UsageError(f"expected a positive number of seconds, got {value!r}", source, place)
         return float(value)
+    if key == "words":
+        if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= 65536:
+            raise UsageError(f"expected a number of words from 1 to 65536, got {value!r}", source, place)
+        return value
     if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= 4096:
         raise UsageError(f"expected a width from 1 to 4096 bits, got {value!r}", source, place)
     return value

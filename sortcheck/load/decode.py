@@ -9,9 +9,14 @@ enough to exhaust the stack.  Nothing is ever evaluated.
 from __future__ import annotations
 
 import json
+import os
+from pathlib import Path
 from typing import Any
 
 from sortcheck.errors import NetlistError
+
+#: Files larger than this are refused before they are read.
+MAX_FILE_BYTES = 256 * 1024 * 1024
 
 #: The deepest nesting a valid netlist needs is 4 (layers > layer > comparator);
 #: anything far beyond that is refused before further checks walk it.
@@ -124,3 +129,22 @@ def _too_deep(data: Any) -> str | None:
                 continue  # a flat list (a comparator, a bit list) adds no depth worth walking
             stack.extend((item, f"{where}[{index}]", depth + 1) for index, item in enumerate(value))
     return None
+
+
+def read_file_bytes(path: str | os.PathLike) -> bytes:
+    """Read a netlist file's bytes; refuse directories and files over :data:`MAX_FILE_BYTES`."""
+    source = str(path)
+    file = Path(path)
+    try:
+        if file.is_dir():
+            raise NetlistError("is a directory, not a netlist file", source)
+        size = file.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise NetlistError(f"file of {size} bytes is larger than the {MAX_FILE_BYTES} bytes supported", source)
+        return file.read_bytes()
+    except FileNotFoundError:
+        raise NetlistError("no such file", source) from None
+    except PermissionError:
+        raise NetlistError("permission denied", source) from None
+    except OSError as error:
+        raise NetlistError(f"cannot read: {error.strerror or error}", source) from None

@@ -43,12 +43,14 @@ import networkx as nx
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.decode import decode_text, load_json
-from sortcheck.load.netlist import MAX_FILE_BYTES
 from sortcheck.model import OutputWord, Property, Word, bit_name, property_from_json
 from sortcheck.model.circuit import Signal
 
 #: The grouping file of ``FILE`` is ``FILE`` followed by this suffix.
 SIDECAR_SUFFIX = ".words"
+
+#: File suffixes of the bit-level circuit formats.
+CIRCUIT_SUFFIXES = (".aag", ".aig", ".blif")
 
 #: Limits shared with netlist format version 1 (README: the netlist format).
 MAX_WORDS = 1_048_576
@@ -201,44 +203,53 @@ def parse_grouping(text: str | bytes, source: str = "<grouping>") -> Grouping:
     return Grouping(data.get("words"), data.get("width"), claim)
 
 
-def sidecar_path(path: str | os.PathLike) -> Path:
-    """The grouping file that belongs to a circuit file.
+def sidecar_paths(path: str | os.PathLike) -> tuple[Path, ...]:
+    """The grouping files that may belong to a circuit file, in the order they are looked for.
 
-    >>> sidecar_path("corpus/compare-and-swap-2x2.aag").as_posix()
-    'corpus/compare-and-swap-2x2.aag.words'
+    >>> [p.as_posix() for p in sidecar_paths("corpus/compare-and-swap-2x2.aag")]
+    ['corpus/compare-and-swap-2x2.aag.words', 'corpus/compare-and-swap-2x2.aag.json', 'corpus/compare-and-swap-2x2.json']
     """
-    return Path(str(path) + SIDECAR_SUFFIX)
+    file = Path(path)
+    return (Path(str(path) + SIDECAR_SUFFIX), Path(str(path) + ".json"), file.with_suffix(".json"))
+
+
+def _is_netlist(path: Path) -> bool:
+    """Whether a ``.json`` file is a format version 1 netlist (it has a ``"sortcheck"`` key), not a grouping."""
+    try:
+        head = path.read_bytes()[:4096]
+    except OSError:
+        return False
+    return b'"sortcheck"' in head
+
+
+def is_sidecar(path: str | os.PathLike) -> bool:
+    """Whether ``path`` is the grouping file of a circuit file beside it (so it is not a netlist itself).
+
+    A ``.json`` file with the stem of a circuit beside it is a grouping file
+    unless it is a netlist itself (it holds the ``"sortcheck"`` version key).
+    """
+    file = Path(path)
+    if file.suffix == SIDECAR_SUFFIX:
+        return True
+    if file.suffix != ".json" or _is_netlist(file):
+        return False
+    stem = file.with_suffix("")
+    return stem.suffix in CIRCUIT_SUFFIXES or any(stem.with_suffix(s).exists() for s in CIRCUIT_SUFFIXES)
 
 
 def read_sidecar(path: str | os.PathLike) -> Grouping | None:
-    """Read the grouping file of the circuit file ``path``, or None when there is none."""
-    sidecar = sidecar_path(path)
-    try:
-        data = sidecar.read_bytes()
-    except FileNotFoundError:
-        return None
-    except OSError as error:
-        raise NetlistError(f"cannot read: {error.strerror or error}", str(sidecar)) from None
-    return parse_grouping(data, str(sidecar))
-
-
-def read_circuit_bytes(path: str | os.PathLike) -> bytes:
-    """Read a circuit file's bytes, with the size limit and error messages of :func:`read_netlist`."""
-    source = str(path)
-    file = Path(path)
-    try:
-        if file.is_dir():
-            raise NetlistError("is a directory, not a netlist file", source)
-        size = file.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise NetlistError(f"file of {size} bytes is larger than the {MAX_FILE_BYTES} bytes supported", source)
-        return file.read_bytes()
-    except FileNotFoundError:
-        raise NetlistError("no such file", source) from None
-    except PermissionError:
-        raise NetlistError("permission denied", source) from None
-    except OSError as error:
-        raise NetlistError(f"cannot read: {error.strerror or error}", source) from None
+    """Read the first grouping file of the circuit file ``path`` that exists, or None when there is none."""
+    for sidecar in sidecar_paths(path):
+        if sidecar.suffix == ".json" and _is_netlist(sidecar):
+            continue  # a netlist of the same name, not a grouping file
+        try:
+            data = sidecar.read_bytes()
+        except FileNotFoundError:
+            continue
+        except OSError as error:
+            raise NetlistError(f"cannot read: {error.strerror or error}", str(sidecar)) from None
+        return parse_grouping(data, str(sidecar))
+    return None
 
 
 def choose_grouping(sidecar: Grouping | None, words: int | None, width: int | None) -> Grouping:

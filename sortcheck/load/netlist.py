@@ -15,14 +15,13 @@ from typing import Any
 import networkx as nx
 
 from sortcheck.errors import NetlistError
-from sortcheck.load.decode import decode_text, load_json
+from sortcheck.load.aiger import read_aiger
+from sortcheck.load.blif import read_blif
+from sortcheck.load.decode import decode_text, load_json, read_file_bytes
 from sortcheck.load.schema import check_header, validate_shape
 from sortcheck.model import (
     OP_ARITY, ComparatorNetwork, GateCircuit, Gate, Netlist, OutputWord, Word, bit_name, property_from_json,
 )
-
-#: Files larger than this are refused before they are read.
-MAX_FILE_BYTES = 256 * 1024 * 1024
 
 _BIT_PATTERN = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)\[(\d+)\]$")
 
@@ -69,24 +68,21 @@ def parse_netlist(text: str | bytes, source: str = "<netlist>") -> Netlist:
     return _build_circuit(data, source, metadata)
 
 
-def read_netlist(path: str | os.PathLike) -> Netlist:
-    """Read and parse a netlist file; errors name the file as given."""
-    source = str(path)
-    file = Path(path)
-    try:
-        if file.is_dir():
-            raise NetlistError("is a directory, not a netlist file", source)
-        size = file.stat().st_size
-        if size > MAX_FILE_BYTES:
-            raise NetlistError(f"file of {size} bytes is larger than the {MAX_FILE_BYTES} bytes supported", source)
-        data = file.read_bytes()
-    except FileNotFoundError:
-        raise NetlistError("no such file", source) from None
-    except PermissionError:
-        raise NetlistError("permission denied", source) from None
-    except OSError as error:
-        raise NetlistError(f"cannot read: {error.strerror or error}", source) from None
-    return parse_netlist(data, source)
+def read_netlist(path: str | os.PathLike, words: int | None = None, width: int | None = None) -> Netlist:
+    """Read and parse a netlist file; errors name the file as given.
+
+    ``.aag``/``.aig`` (AIGER) and ``.blif`` files are bit-level circuits: their
+    bits are grouped into ``words`` words of ``width`` bits (from the
+    arguments, else from a grouping file beside the circuit, see
+    :mod:`sortcheck.load.grouping`).  Every other file is read as format
+    version 1 JSON, for which ``words`` and ``width`` mean nothing.
+    """
+    suffix = Path(path).suffix.lower()
+    if suffix in (".aag", ".aig"):
+        return read_aiger(path, words, width)
+    if suffix == ".blif":
+        return read_blif(path, words, width)
+    return parse_netlist(read_file_bytes(path), str(path))
 
 
 def _build_network(data: dict, source: str, metadata: dict) -> ComparatorNetwork:

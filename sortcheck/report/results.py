@@ -98,20 +98,22 @@ def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeo
 
 
 def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
-               options: Options = Options(), progress: Progress | None = None, minimize: bool = True) -> FileResult:
+               options: Options = Options(), progress: Progress | None = None, minimize: bool = True,
+               words: int | None = None) -> FileResult:
     """Load one file and check it; never raises for bad input.
 
     ``prop`` (from the command line) overrides the property the file claims;
     with neither, ``sorts`` is checked.  ``options`` and ``progress`` go to
     the engine (see :func:`sortcheck.engines.check`); a counterexample is
     minimised unless ``minimize`` is false (within ``timeout`` again, or
-    :data:`MINIMIZE_SECONDS`), then diagnosed and traced.
+    :data:`MINIMIZE_SECONDS`), then diagnosed and traced.  ``words`` and
+    ``options.width`` group the bits of AIGER and BLIF files.
     """
     started = time.perf_counter()
     netlist = None
     chosen = None
     try:
-        netlist = read_netlist(path)
+        netlist = read_netlist(path, words, options.width)
         chosen = prop or netlist.claim or DEFAULT_PROPERTY
         check_fits(chosen, netlist, path, where="--property" if prop else "property")
         verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path, options=options,
