@@ -1,0 +1,363 @@
+"""The ``sat`` engine: comparator networks of thousands of channels, by the 0-1 principle.
+
+A check runs in three steps, each sound on its own:
+
+1. **Random simulation.**  Bit-parallel runs of random 0-1 inputs (weights
+   spread over ``0..n`` and bunched near ``n/2``) refute most broken networks
+   in milliseconds.
+2. **Split along the network's structure** (:mod:`sortcheck.engines.network_split`).
+   Groups of channels that the network sorts on their own (Batcher's
+   networks sort halves, quarters, residue classes, ...) are proved one at a
+   time, each only on the 0-1 vectors its sorted sub-groups can produce.  A
+   part whose vectors are few (at most :data:`ENUMERATION_LIMIT`) is
+   checked on all of them, bit-parallel; a larger one by a SAT solver.
+3. **The property**, on the whole network, from the proved parts: again by
+   enumeration when the vectors are few, else by SAT.  A network with no such
+   structure comes down to one SAT call on the whole CNF
+   (:mod:`sortcheck.engines.network_cnf`).
+
+The solver is glucose 4 through python-sat: it can be interrupted at the
+deadline (``cooperative``), and on our networks it was as fast as the CaDiCaL
+and Kissat builds overall (``encodings/comparator-network-cnf.md`` has the
+measurements).
+
+>>> from sortcheck.model import ComparatorNetwork, Sorts
+>>> from sortcheck.model.families import bitonic
+>>> verdict = SatEngine().check(bitonic(64), Sorts(), Budget())
+>>> verdict.status.value, verdict.figures["parts_proved"]
+('proved', 62)
+>>> verdict = SatEngine().check(ComparatorNetwork(3, ((0, 1), (1, 2))), Sorts(), Budget())
+>>> verdict.status.value, verdict.counterexample.input
+('refuted', (1, 1, 0))
+"""
+
+from __future__ import annotations
+
+import threading
+import time
+from dataclasses import dataclass, field
+
+import numpy as np
+from pysat.formula import IDPool
+from pysat.solvers import Solver
+
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
+from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
+from sortcheck.engines.network_cnf import chain_clauses, descent_clauses, encode_network, violation_clauses
+from sortcheck.engines.network_split import SortedParts, frontier, join_delayed_order, split_tree
+from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property
+from sortcheck.model.semantics import violation
+
+#: The SAT solver (python-sat name).
+SOLVER = "glucose4"
+
+#: Parts with at most this many 0-1 vectors are checked by enumerating them.
+ENUMERATION_LIMIT = 1 << 22
+
+#: Random 0-1 inputs tried before anything else (in rounds of 4096).
+SIMULATION_ROUNDS = 4
+
+#: A part is checked only if the comparators of parts below it that did not
+#: sort are at most this many times its own; otherwise it is dissolved unchecked.
+DISSOLVED_RATIO = 3
+
+
+class _Interrupted(Exception):
+    """The deadline passed inside a check."""
+
+
+@dataclass
+class _Tally:
+    """Figures gathered over one check."""
+
+    variables: int = 0
+    clauses: int = 0
+    sat_calls: int = 0
+    solver_seconds: float = 0.0
+    vectors: int = 0
+    parts_proved: int = 0
+    parts_dissolved: int = 0
+    parts_enumerated: int = 0
+    notes: list[str] = field(default_factory=list)
+
+
+
+def _apply_within(rows: list, pairs: list, scratch: np.ndarray, budget: Budget, chunk: int = 20000) -> np.ndarray:
+    """``apply_network`` in chunks of comparators, stopping at the deadline."""
+    for start in range(0, len(pairs), chunk):
+        if budget.expired():
+            raise _Interrupted
+        scratch = apply_network(rows, pairs[start:start + chunk], scratch)
+    return scratch
+
+
+def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: Budget, seed: int = 2024
+              ) -> tuple[int, ...] | None:
+    """A failing 0-1 input among random ones, or None.  Merges get random pairs of ascending runs."""
+    n, lanes = network.channels, 4096
+    rng = np.random.default_rng(seed)
+    for _ in range(rounds):
+        if isinstance(prop, Merges):
+            source = SortedParts([(tuple(range(prop.split)), "ascending"), (tuple(range(prop.split, n)), "ascending")])
+            ones = source.random_ones(rng, lanes)
+            bits = np.array([source.vector_of_ones([int(g[i]) for g in ones], n) for i in range(lanes)],
+                            dtype=bool).T
+        else:
+            spread = rng.integers(0, n + 1, size=lanes // 2)
+            middle = np.clip(np.rint(rng.normal(n / 2, max(1.0, np.sqrt(n) / 2), size=lanes - lanes // 2)), 0, n)
+            weights = np.concatenate([spread, middle.astype(np.int64)])
+            ranks = rng.random((lanes, n)).argsort(axis=1).argsort(axis=1)
+            bits = (ranks < weights[:, None]).T
+        packed = np.ascontiguousarray(np.packbits(bits, axis=1, bitorder="little")).view("<u8")
+        rows = [packed[c].copy() for c in range(n)]
+        _apply_within(rows, list(network.comparators), np.empty(lanes // 64, dtype=np.uint64), budget)
+        lane = first_failing_lane(failure_mask(prop, rows), lanes)
+        if lane is not None:
+            return tuple(int(b) for b in bits[:, lane])
+    return None
+
+
+class SatEngine:
+    """Random simulation, then the network split along its structure, then SAT (glucose 4).
+
+    Parameters
+    ----------
+    solver : str
+        python-sat solver name.  Only solvers that python-sat can interrupt
+        (glucose, minisat) keep ``cooperative`` true.
+    enumeration_limit : int
+        Parts with at most this many 0-1 vectors are enumerated instead of
+        sent to the solver; 0 sends every part to the solver.
+    split : bool
+        Split along the network's structure (False: one SAT call on the
+        whole network).
+    """
+
+    name = "sat"
+    cooperative = True
+
+    def __init__(self, solver: str = SOLVER, enumeration_limit: int = ENUMERATION_LIMIT, split: bool = True,
+                 simulation_rounds: int = SIMULATION_ROUNDS):
+        self.solver = solver
+        self.enumeration_limit = enumeration_limit
+        self.split = split
+        self.simulation_rounds = simulation_rounds
+        self.cooperative = solver.startswith(("glucose", "minisat", "maple", "gluecard", "minicard"))
+
+    def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
+                ) -> tuple[StopReason, str] | None:
+        if not isinstance(netlist, ComparatorNetwork):
+            return StopReason.UNSUPPORTED, "sat checks comparator networks only (gate circuits need another engine)"
+        if isinstance(prop, PartialSort):
+            return StopReason.UNSUPPORTED, "partial-sort applies to gate circuits only"
+        return None
+
+    # -- the check -------------------------------------------------------------------------------------------
+
+    def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
+        started = time.perf_counter()
+        refused = self.refusal(netlist, prop, options)
+        if refused is not None:
+            return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
+                           time.perf_counter() - started)
+        network: ComparatorNetwork = netlist  # type: ignore[assignment]
+        tally = _Tally()
+        try:
+            failing = _simulate(network, prop, self.simulation_rounds, budget) if self.simulation_rounds else None
+            if failing is not None:
+                return self._refuted(network, prop, failing, tally, "random simulation", started)
+            failing, decided = self._prove(network, prop, budget, tally)
+        except _Interrupted:
+            return self._unknown(network, prop, tally, started)
+        if failing is not None:
+            return self._refuted(network, prop, failing, tally, decided, started)
+        figures = self._figures(tally, decided, started)
+        return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, self._proved_scope(network, prop, tally),
+                       figures["seconds"], None, figures)
+
+    def _prove(self, network: ComparatorNetwork, prop: Property, budget: Budget, tally: _Tally
+               ) -> tuple[tuple[int, ...] | None, str]:
+        n = network.channels
+        if isinstance(prop, Merges) or not self.split:
+            groups = ([(tuple(range(prop.split)), "ascending"), (tuple(range(prop.split, n)), "ascending")]
+                      if isinstance(prop, Merges) else [((c,), "ascending") for c in range(n)])
+            comparators = list(range(network.size))
+            return self._decide(network, groups, comparators, prop, budget, tally)
+        parts = split_tree(network, join_delayed_order(network))
+        root = len(parts) - 1
+        for index in range(n, root):
+            if budget.expired():
+                raise _Interrupted
+            budget.report(index - n, root - n, "proving parts")
+            self._settle(network, parts, index, budget, tally)
+        below, comparators = frontier(parts, root)
+        groups = [(parts[i].channels, parts[i].order) for i in below]
+        return self._decide(network, groups, comparators, prop, budget, tally)
+
+    def _settle(self, network: ComparatorNetwork, parts: list, index: int, budget: Budget, tally: _Tally) -> None:
+        """Prove part ``index`` sorts (ascending, else descending) or dissolve it."""
+        part = parts[index]
+        below, comparators = frontier(parts, index)
+        if len(comparators) > (DISSOLVED_RATIO + 1) * max(1, len(part.segment)):
+            part.order = "dissolved"
+            tally.parts_dissolved += 1
+            return
+        groups = [(parts[i].channels, parts[i].order) for i in below]
+        for order in ("ascending", "descending"):
+            failing, _ = self._decide(network, groups, comparators, ("sorted", part.channels, order), budget, tally)
+            if failing is None:
+                part.order = order
+                tally.parts_proved += 1
+                return
+        part.order = "dissolved"
+        tally.parts_dissolved += 1
+
+    def _decide(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
+                tally: _Tally) -> tuple[tuple[int, ...] | None, str]:
+        """A vector sorted on the groups that breaks ``target`` after ``comparators``, or None; and the method."""
+        source = SortedParts(groups)
+        if source.total <= self.enumeration_limit:
+            tally.parts_enumerated += 1
+            return self._enumerate(network, source, comparators, target, budget, tally), "split"
+        failing = self._sample(network, source, comparators, target, budget)
+        if failing is not None:
+            return failing, "random simulation"
+        return self._solve(network, groups, comparators, target, budget, tally), "sat"
+
+    # -- the two ways to check a part -------------------------------------------------------------------------
+
+    def _mask(self, target, rows: list) -> np.ndarray:
+        if isinstance(target, tuple):
+            _, channels, order = target
+            return _descents([rows[c] for c in channels], len(channels), order == "descending")
+        return failure_mask(target, rows)
+
+    def _channels(self, network: ComparatorNetwork, target) -> tuple[int, ...]:
+        return target[1] if isinstance(target, tuple) else tuple(range(network.channels))
+
+    def _enumerate(self, network, source: SortedParts, comparators: list[int], target, budget: Budget,
+                   tally: _Tally) -> tuple[int, ...] | None:
+        channels = self._channels(network, target)
+        words = max(1, min(4096, (1 << 21) // max(1, len(channels)), -(-source.total // 64)))
+        rows = [None] * network.channels
+        for channel in channels:
+            rows[channel] = np.zeros(words, dtype=np.uint64)
+        pairs = [network.comparators[i] for i in comparators]
+        scratch = np.empty(words, dtype=np.uint64)
+        for start in range(0, source.total, words * 64):
+            if budget.expired():
+                raise _Interrupted
+            valid = source.fill(start, words * 64, rows)
+            scratch = _apply_within(rows, pairs, scratch, budget)
+            lane = first_failing_lane(self._mask(target, rows), valid)
+            tally.vectors += valid
+            if lane is not None:
+                return source.vector(start + lane, network.channels)
+        return None
+
+    def _sample(self, network, source: SortedParts, comparators: list[int], target, budget: Budget
+                ) -> tuple[int, ...] | None:
+        """Random vectors of a part too large to enumerate: a cheap refutation before SAT."""
+        channels = self._channels(network, target)
+        rows = [None] * network.channels
+        for channel in channels:
+            rows[channel] = np.zeros(64, dtype=np.uint64)
+        ones = source.random_ones(np.random.default_rng(7), 64 * 64)
+        source.fill_ones(ones, rows)
+        _apply_within(rows, [network.comparators[i] for i in comparators], np.empty(64, dtype=np.uint64), budget)
+        lane = first_failing_lane(self._mask(target, rows), 64 * 64)
+        if lane is None:
+            return None
+        return source.vector_of_ones([int(group[lane]) for group in ones], network.channels)
+
+    def _solve(self, network, groups: list, comparators: list[int], target, budget: Budget, tally: _Tally
+               ) -> tuple[int, ...] | None:
+        channels = self._channels(network, target)
+        pool = IDPool()
+        inputs = [0] * network.channels
+        for channel in channels:
+            inputs[channel] = pool.id(("input", channel))
+        encoding = encode_network(network, pool, comparators, inputs)
+        clauses = list(encoding.clauses)
+        for members, order in groups:
+            clauses += chain_clauses([inputs[c] for c in members], order == "descending")
+        if isinstance(target, tuple):
+            outputs = [encoding.outputs[c] for c in channels]
+            pair_clauses, pairs = descent_clauses(outputs, pool, target[2] == "descending")
+            clauses += pair_clauses + [pairs]
+        else:
+            condition = violation_clauses(target, inputs, encoding.outputs, pool)
+            if condition is None:
+                return None
+            clauses += condition
+        tally.variables += pool.top
+        tally.clauses += len(clauses)
+        if budget.expired():
+            raise _Interrupted
+        model = self._run_solver(clauses, budget, tally)
+        if model is None:
+            return None
+        true = {literal for literal in model if literal > 0}
+        return tuple(int(inputs[c] in true) if inputs[c] else 0 for c in range(network.channels))
+
+    def _run_solver(self, clauses: list, budget: Budget, tally: _Tally) -> list[int] | None:
+        """The model, or None when unsatisfiable; raises :class:`_Interrupted` at the deadline."""
+        started = time.perf_counter()
+        tally.sat_calls += 1
+        with Solver(name=self.solver, bootstrap_with=clauses) as solver:
+            remaining = budget.remaining()
+            if remaining is not None and remaining <= 0:
+                raise _Interrupted
+            if remaining is not None and self.cooperative:
+                timer = threading.Timer(remaining, solver.interrupt)
+                timer.start()
+                try:
+                    answer = solver.solve_limited(expect_interrupt=True)
+                finally:
+                    timer.cancel()
+            else:
+                answer = solver.solve()
+            tally.solver_seconds += time.perf_counter() - started
+            if answer is None:
+                raise _Interrupted
+            return solver.get_model() if answer else None
+
+    # -- verdicts --------------------------------------------------------------------------------------------
+
+    def _figures(self, tally: _Tally, decided: str, started: float) -> dict:
+        return {"decided": decided, "solver": self.solver, "variables": tally.variables, "clauses": tally.clauses,
+                "sat_calls": tally.sat_calls, "solver_seconds": round(tally.solver_seconds, 4),
+                "parts_proved": tally.parts_proved, "parts_dissolved": tally.parts_dissolved,
+                "parts_enumerated": tally.parts_enumerated, "vectors_enumerated": tally.vectors,
+                "seconds": time.perf_counter() - started}
+
+    def _proved_scope(self, network: ComparatorNetwork, prop: Property, tally: _Tally) -> str:
+        n = network.channels
+        inputs = (f"every input on {n} channels whose positions 0..{prop.split - 1} and {prop.split}..{n - 1} are "
+                  f"each ascending" if isinstance(prop, Merges) else f"every input on {n} channels")
+        if tally.vectors == 0 and tally.parts_proved == 0:
+            how = f"through a SAT proof of unsatisfiability ({self.solver})"
+        else:
+            how = (f"the network was split along its structure into {tally.parts_proved} proved sorting parts and "
+                   f"the property, each checked on every 0-1 vector the parts before it can produce: "
+                   f"{tally.vectors:,} vectors enumerated bit-parallel and {tally.sat_calls} SAT proofs of "
+                   f"unsatisfiability ({self.solver})")
+        return f"{inputs}, of any values, by the 0-1 principle: {how}"
+
+    def _refuted(self, network: ComparatorNetwork, prop: Property, failing: tuple[int, ...], tally: _Tally,
+                 decided: str, started: float) -> Verdict:
+        output = tuple(network.apply(list(failing)))
+        reason = violation(prop, failing, output)
+        if reason is None:
+            raise AssertionError(f"internal error: input {failing} was found failing but meets {prop.describe()}")
+        figures = self._figures(tally, decided, started)
+        scope = ("this 0-1 input breaks the property, and so does every input of any values with the same "
+                 "order pattern")
+        return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope, figures["seconds"],
+                       Counterexample(failing, output, "0-1", reason), figures)
+
+    def _unknown(self, network: ComparatorNetwork, prop: Property, tally: _Tally, started: float) -> Verdict:
+        figures = self._figures(tally, "time budget", started)
+        scope = (f"the time budget ran out after {tally.parts_proved} parts were proved to sort and "
+                 f"{tally.sat_calls} SAT calls; random inputs found no failure; nothing is proved")
+        return Verdict(Status.UNKNOWN, self.name, prop, StopReason.TIMEOUT, scope, figures["seconds"], None, figures)
