@@ -14,12 +14,19 @@ from pathlib import Path
 from typing import Sequence, TextIO
 
 from sortcheck import __version__
-from sortcheck.engines import ENGINE_NAMES, Options
+from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
 from sortcheck.errors import SortcheckError, UsageError
-from sortcheck.load import dump_netlist, parse_property, read_netlist
+from sortcheck.explain import diagnose_network
+from sortcheck.explain.draw import draw_network, parse_input_values
+from sortcheck.explain.repair import repair_network
+from sortcheck.load import dump_netlist, parse_property, read_netlist, write_netlist
 from sortcheck.load.config import CheckRequest, expand, read_project_config
 
+from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, check_fits
+from sortcheck.model.circuit_builds import build_circuit
+from sortcheck.model.cost import cost_counts
 from sortcheck.model.families import FAMILIES, build_family
+from sortcheck.model.lowering import STYLES
 from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
     stats_report, summarise,
@@ -27,7 +34,7 @@ from sortcheck.report import (
 from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line
 from sortcheck.report.sarif import sarif_report
-from sortcheck.report.text import describe_netlist
+from sortcheck.report.text import describe_netlist, format_repair
 
 
 class _Parser(argparse.ArgumentParser):
@@ -104,14 +111,41 @@ def build_parser() -> argparse.ArgumentParser:
                                                         "goes to the terminal)")
 
     stats = commands.add_parser("stats", help="print size, depth and other figures of netlists")
-    stats.add_argument("paths", nargs="+", metavar="PATH")
+    stats.add_argument("paths", nargs="+", metavar="PATH", help="netlist files or directories")
+    stats.add_argument("--redundant", action="store_true",
+                       help="comparator networks: find the comparators that never swap on any input (proved)")
+    stats.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS", help="time budget per file "
+                       "for --redundant")
+    stats.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
+    stats.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
     stats.add_argument("--format", choices=("text", "json"), default="text")
 
-    build = commands.add_parser("build", help="write a reference comparator network")
-    build.add_argument("family", choices=sorted(FAMILIES), metavar="FAMILY",
-                       help=f"one of {', '.join(sorted(FAMILIES))}")
-    build.add_argument("channels", type=_size, metavar="N", help="number of channels")
+    build = commands.add_parser("build", help="write a reference comparator network or sorting circuit")
+    build.add_argument("family", choices=sorted(FAMILIES) + ["counting"], metavar="FAMILY",
+                       help=f"one of {', '.join(sorted(FAMILIES))} (comparator networks, or gate circuits with "
+                            f"--width), or counting (a counting-sort circuit, needs --width)")
+    build.add_argument("channels", type=_size, metavar="N", help="number of channels (words)")
+    build.add_argument("--width", type=_width, metavar="BITS", help="build a gate circuit on words of BITS bits")
+    build.add_argument("--style", choices=sorted(STYLES), help="how comparators become gates (default: and-or)")
+    build.add_argument("--key-bits", type=_width, metavar="K", help="compare only the K most significant bits")
+    build.add_argument("--signed", action="store_true", help="compare two's complement words")
     build.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+
+    draw = commands.add_parser("draw", help="draw a comparator network as SVG, with a counterexample on it")
+    draw.add_argument("path", metavar="PATH")
+    draw.add_argument("--output", metavar="FILE.svg", required=True)
+    draw.add_argument("--input", metavar="VALUES", help="values to follow through the network: comma-separated "
+                      "integers or a string of 0s and 1s (default: the smallest counterexample, if any)")
+    draw.add_argument("--property", metavar="SPEC", help="property to judge the outputs by (default: the file's)")
+    draw.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
+
+    repair = commands.add_parser("repair", help="find the smallest change that makes a network meet its "
+                                 "property, proved by re-checking")
+    repair.add_argument("path", metavar="PATH")
+    repair.add_argument("--output", metavar="FIXED.json", help="write the repaired network here")
+    repair.add_argument("--property", metavar="SPEC")
+    repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
+    repair.add_argument("--format", choices=("text", "json"), default="text")
     return parser
 
 
@@ -190,27 +224,50 @@ def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     return exit_status(summarise(results))
 
 
-def _stats_result(path: str) -> FileResult:
+def _stats_result(path: str, args: argparse.Namespace) -> FileResult:
     try:
-        netlist = read_netlist(path)
+        netlist = read_netlist(path, args.words, args.width)
     except SortcheckError as error:
         return FileResult(path, error=error)
-    return FileResult(path, kind_of(netlist), stats=netlist.stats())
+    stats = netlist.stats()
+    if isinstance(netlist, GateCircuit):
+        stats["costs"] = cost_counts(netlist)
+    elif args.redundant:
+        stats.update(_redundancy(netlist, args.timeout))
+    return FileResult(path, kind_of(netlist), stats=stats)
+
+
+def _redundancy(network: ComparatorNetwork, timeout: float | None) -> dict:
+    redundant = redundant_comparators(network, Budget.of(timeout))
+    if redundant is None:
+        return {"redundant": None, "pruned_size": None}
+    return {"redundant": redundant, "pruned_size": network.size - len(redundant)}
 
 
 def _stats_line(result: FileResult) -> str:
     if result.error is not None:
         return f"ERROR    {result.error}"
-    line = f"{result.path}: {result.kind}, {describe_netlist(result.stats, result.kind)}"
+    stats = result.stats
+    line = f"{result.path}: {result.kind}, {describe_netlist(stats, result.kind)}"
     if result.kind == "gate-circuit":
-        line += " (" + ", ".join(f"{op} {count}" for op, count in result.stats["ops"].items()) + ")"
-    elif result.stats["reversed_comparators"]:
-        line += f" ({result.stats['reversed_comparators']} reversed)"
+        line += " (" + ", ".join(f"{op} {count}" for op, count in stats["ops"].items()) + ")"
+        costs = stats["costs"]
+        line += f"; as 2-input gates: {costs['and']} AND, {costs['or']} OR, {costs['xor']} XOR, {costs['not']} NOT"
+    elif stats["reversed_comparators"]:
+        line += f" ({stats['reversed_comparators']} reversed)"
+    if "redundant" in stats:
+        if stats["redundant"] is None:
+            line += "; redundant comparators: undecided (time budget)"
+        else:
+            shown = ", ".join(map(str, stats["redundant"][:20])) + (", ..." if len(stats["redundant"]) > 20 else "")
+            line += (f"; {len(stats['redundant'])} comparators never swap"
+                     f"{' (' + shown + ')' if stats['redundant'] else ''}, pruned size {stats['pruned_size']}")
     return line
 
 
 def run_stats(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    results = [_stats_result(path) for path in args.paths]
+    paths = [file for path in args.paths for file in expand(path)]
+    results = [_stats_result(path, args) for path in paths]
     _report_errors(results, stderr)
     if args.format == "json":
         stdout.write(dumps(stats_report(results)))
@@ -220,18 +277,75 @@ def run_stats(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    network = build_family(args.family, args.channels)
-    text = dump_netlist(network)
+    if args.width is None:
+        if args.family == "counting" or args.style or args.key_bits or args.signed:
+            raise UsageError("--width is needed for gate circuits (counting, --style, --key-bits, --signed)",
+                             "build")
+        netlist = build_family(args.family, args.channels)
+        figures = f"{netlist.channels} channels, {netlist.size} comparators, depth {netlist.depth}"
+    else:
+        netlist = build_circuit(args.family, args.channels, args.width, style=args.style, key_bits=args.key_bits,
+                                signed=args.signed)
+        figures = f"{netlist.words} words of {netlist.width} bits, {len(netlist.gates)} gates, depth {netlist.depth}"
+    text = dump_netlist(netlist)
     if args.output:
         _write(args.output, text)
-        print(f"wrote {args.output}: {network.name}, {network.channels} channels, {network.size} comparators, "
-              f"depth {network.depth}", file=stderr)
+        print(f"wrote {args.output}: {netlist.name}, {figures}", file=stderr)
     else:
         stdout.write(text)
     return EXIT_PROVED
 
 
-COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build}
+def _network_of(path: str, command: str) -> ComparatorNetwork:
+    netlist = read_netlist(path)
+    if not isinstance(netlist, ComparatorNetwork):
+        raise UsageError(f"{command} takes comparator networks; gate circuits are not supported yet", path)
+    return netlist
+
+
+def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    network = _network_of(args.path, "draw")
+    prop = parse_property(args.property) if args.property else network.claim or DEFAULT_PROPERTY
+    check_fits(prop, network, args.path, where="--property" if args.property else "property")
+    diagnosis = None
+    if args.input:
+        try:
+            values = parse_input_values(args.input, network.channels)
+        except ValueError as error:
+            raise UsageError(str(error), "--input") from None
+        if set(values) <= {0, 1}:
+            diagnosis = diagnose_network(network, prop, values)
+    else:
+        result = check_file(args.path, prop if args.property else None, timeout=args.timeout)
+        example = result.verdict.counterexample if result.verdict else None
+        values = example.input if example is not None else None
+        diagnosis = result.diagnosis
+    _write(args.output, draw_network(network, values, diagnosis, prop=prop))
+    shown = "" if values is None else f" with input {' '.join(map(str, values))}"
+    print(f"wrote {args.output}: {network.channels} channels, {network.size} comparators{shown}", file=stderr)
+    return EXIT_PROVED
+
+
+def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    network = _network_of(args.path, "repair")
+    prop = parse_property(args.property) if args.property else None
+    if prop is not None:
+        check_fits(prop, network, args.path, where="--property")
+    outcome = repair_network(network, prop, Budget.of(args.timeout))
+    if outcome.network is not None and args.output and outcome.status == "repaired":
+        write_netlist(outcome.network, args.output)
+    report = {"sortcheck_report": 1, "results": [{"path": args.path, "kind": "comparator-network",
+                                                  "property": (prop or network.claim or DEFAULT_PROPERTY).to_json(),
+                                                  "repair": outcome.to_json()}]}
+    stdout.write(dumps(report) if args.format == "json" else format_repair(args.path, outcome, args.output))
+    return REPAIR_EXIT[outcome.status]
+
+
+COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build, "draw": run_draw, "repair": run_repair}
+
+#: Exit status of ``repair`` by outcome: a verified repair (or nothing to repair) 0, none within the
+#: search 1, budget or undecided 3.
+REPAIR_EXIT = {"repaired": 0, "holds": 0, "none": 1, "budget": 3, "unknown": 3}
 
 
 def main(argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr: TextIO | None = None) -> int:

@@ -11,8 +11,9 @@ from __future__ import annotations
 import time
 
 from sortcheck.engines.base import Budget, Counterexample, Engine, Options, Progress, Status, StopReason, Verdict
-from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.enumeration import EnumerateEngine, redundant_comparators_by_enumeration
 from sortcheck.engines.gate_simulation import SimulateEngine
+from sortcheck.engines.smt import SmtEngine
 from sortcheck.engines.isolation import check_in_child
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Netlist, Property, check_fits
@@ -24,6 +25,7 @@ EXHAUSTIVE_GATE_BITS = 24
 ENGINES: dict[str, Engine] = {
     "enumerate": EnumerateEngine(),
     "simulate": SimulateEngine(max_exhaustive_bits=EXHAUSTIVE_GATE_BITS),
+    "smt": SmtEngine(),
 }
 
 #: Why ``auto`` takes each engine, in words for the report.
@@ -31,6 +33,7 @@ CHOICE_REASONS = {
     "enumerate": "it evaluates every 0-1 input the property speaks about, which covers all inputs (0-1 principle)",
     "simulate": (f"it simulates the gate circuit on every input when there are at most 2^{EXHAUSTIVE_GATE_BITS}, "
                  "and on corner-case and random inputs otherwise (which can only refute)"),
+    "smt": "it proves the property on words of the chosen width with z3, without the 0-1 principle",
 }
 
 #: Names accepted by ``--engine``.
@@ -107,5 +110,14 @@ def check(netlist: Netlist, prop: Property | None = None, engine: str = "auto",
     return verdict.with_choice(reason, time.perf_counter() - started)
 
 
+def redundant_comparators(network: ComparatorNetwork, budget: Budget) -> list[int] | None:
+    """Indices of the comparators of ``network`` that never swap on any input, proved; None if undecided.
+
+    >>> redundant_comparators(ComparatorNetwork(3, ((0, 1), (0, 1), (1, 2), (0, 2))), Budget())
+    [1, 3]
+    """
+    return redundant_comparators_by_enumeration(network, budget)
+
+
 __all__ = ["Budget", "Counterexample", "Engine", "Options", "Progress", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",
-           "check", "choose_engine", "get_engine"]
+           "check", "choose_engine", "get_engine", "redundant_comparators"]

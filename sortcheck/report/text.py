@@ -40,6 +40,12 @@ def value_rows(label: str, values: Sequence[int], domain: str, width: int = 1) -
 TRACE_CHANNELS = 32
 
 
+def _count(number: int) -> str:
+    """``65,536`` for small counts, ``2^40`` for exact large powers of two."""
+    exponent = number.bit_length() - 1
+    return f"2^{exponent}" if number == 1 << exponent and exponent > 20 else f"{number:,}"
+
+
 def trace_rows(trace: Trace, domain: str) -> list[str]:
     """The trace as one row per layer; ``*`` marks a layer in which a comparator swapped."""
     width = max(len(str(v)) for row in trace.values for v in row)
@@ -87,7 +93,12 @@ def format_result(result: FileResult) -> list[str]:
     done = ""
     if "vectors_evaluated" in figures:
         noun = "0-1 inputs" if result.kind == "comparator-network" else "inputs"
-        done = f", {figures['vectors_evaluated']:,} of {figures['vectors_total']:,} {noun} evaluated"
+        total, evaluated = figures["vectors_total"], figures["vectors_evaluated"]
+        reduced = figures.get("vectors_after_reduction")
+        if reduced is not None and reduced < total and verdict.status.value == "proved":
+            done = f", all {_count(total)} {noun} covered by {evaluated:,} distinct vectors after reduction"
+        else:
+            done = f", {evaluated:,} of {_count(total)} {noun} evaluated"
     lines.append(f"{INDENT}{verdict.engine} in {result.seconds:.2f} s{done}")
     if verdict.engine_reason:
         lines.append(f"{INDENT}engine: {verdict.engine_reason}")
@@ -106,3 +117,24 @@ def format_text(results: Sequence[FileResult]) -> str:
     """The whole text report."""
     blocks = ["\n".join(format_result(result)) for result in results]
     return "\n\n".join(blocks + [format_summary(results)]) + "\n"
+
+
+def format_repair(path: str, outcome, written: str | None) -> str:
+    """The text report of ``sortcheck repair``."""
+    headline = {"repaired": "REPAIRED", "holds": "HOLDS", "none": "NO REPAIR", "budget": "UNKNOWN",
+                "unknown": "UNKNOWN"}[outcome.status]
+    lines = [f"{headline:<9} {path}"]
+    for change in outcome.changes:
+        lines.append(f"{INDENT}{change.describe()}")
+    if outcome.status == "repaired":
+        proof = outcome.verdict
+        lines.append(f"{INDENT}verified: the repaired network was re-checked by {proof.engine}: {proof.scope}")
+        if written:
+            lines.append(f"{INDENT}written to {written}")
+    elif outcome.status == "holds":
+        lines.append(f"{INDENT}the network already meets the property; nothing to repair")
+    else:
+        lines.append(f"{INDENT}{outcome.reason}")
+    lines.append(f"{INDENT}{outcome.candidates_tried:,} candidates tried, {outcome.verifications} full checks, "
+                 f"{outcome.seconds:.2f} s; searched {outcome.searched}")
+    return "\n".join(lines) + "\n"
