@@ -15,6 +15,8 @@ from sortcheck.engines.enumeration import EnumerateEngine, redundant_comparators
 from sortcheck.engines.gate_simulation import SimulateEngine
 from sortcheck.engines.smt import SmtEngine
 from sortcheck.engines.isolation import check_in_child
+from sortcheck.engines.redundancy import redundant_comparators as redundant_comparators_by_sat
+from sortcheck.engines.sat import SatEngine
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Netlist, Property, check_fits
 
@@ -24,6 +26,7 @@ EXHAUSTIVE_GATE_BITS = 24
 
 ENGINES: dict[str, Engine] = {
     "enumerate": EnumerateEngine(),
+    "sat": SatEngine(),
     "simulate": SimulateEngine(max_exhaustive_bits=EXHAUSTIVE_GATE_BITS),
     "smt": SmtEngine(),
 }
@@ -31,6 +34,8 @@ ENGINES: dict[str, Engine] = {
 #: Why ``auto`` takes each engine, in words for the report.
 CHOICE_REASONS = {
     "enumerate": "it evaluates every 0-1 input the property speaks about, which covers all inputs (0-1 principle)",
+    "sat": ("the network is beyond enumeration; the SAT engine splits it along its structure and proves each part "
+            "(exhaustively when small, else with a SAT solver), which covers all inputs (0-1 principle)"),
     "simulate": (f"it simulates the gate circuit on every input when there are at most 2^{EXHAUSTIVE_GATE_BITS}, "
                  "and on corner-case and random inputs otherwise (which can only refute)"),
     "smt": "it proves the property on words of the chosen width with z3, without the 0-1 principle",
@@ -116,7 +121,9 @@ def redundant_comparators(network: ComparatorNetwork, budget: Budget) -> list[in
     >>> redundant_comparators(ComparatorNetwork(3, ((0, 1), (0, 1), (1, 2), (0, 2))), Budget())
     [1, 3]
     """
-    return redundant_comparators_by_enumeration(network, budget)
+    if network.channels <= 40:
+        return redundant_comparators_by_enumeration(network, budget)
+    return redundant_comparators_by_sat(network, budget)
 
 
 __all__ = ["Budget", "Counterexample", "Engine", "Options", "Progress", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",

@@ -33,14 +33,13 @@ measurements).
 
 from __future__ import annotations
 
-import threading
 import time
 from dataclasses import dataclass, field
 
 import numpy as np
 from pysat.formula import IDPool
-from pysat.solvers import Solver
 
+from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
 from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.network_cnf import chain_clauses, descent_clauses, encode_network, violation_clauses
@@ -304,23 +303,12 @@ class SatEngine:
         """The model, or None when unsatisfiable; raises :class:`_Interrupted` at the deadline."""
         started = time.perf_counter()
         tally.sat_calls += 1
-        with Solver(name=self.solver, bootstrap_with=clauses) as solver:
-            remaining = budget.remaining()
-            if remaining is not None and remaining <= 0:
-                raise _Interrupted
-            if remaining is not None and self.cooperative:
-                timer = threading.Timer(remaining, solver.interrupt)
-                timer.start()
-                try:
-                    answer = solver.solve_limited(expect_interrupt=True)
-                finally:
-                    timer.cancel()
-            else:
-                answer = solver.solve()
+        try:
+            return solve_within(clauses, budget if self.cooperative else Budget(), self.solver)
+        except Interrupted:
+            raise _Interrupted from None
+        finally:
             tally.solver_seconds += time.perf_counter() - started
-            if answer is None:
-                raise _Interrupted
-            return solver.get_model() if answer else None
 
     # -- verdicts --------------------------------------------------------------------------------------------
 

@@ -7,13 +7,14 @@ smaller.  Minimisation runs in two phases:
    :mod:`sortcheck.explain.shrink`, evaluating the candidates of each pass
    bit-parallel, which gives an upper bound ``u``;
 2. prove it: evaluate every 0-1 input with ``w`` ones and every one with
-   ``w`` zeros, for ``w = 0, 1, ..., u - 1`` in that order; the first failing
-   one is the minimum, and if none fails the shrunk input is minimal.
+   ``w`` zeros, for ``w = 0, 1, ...`` in that order, as long as there are at
+   most ``max_vectors`` of them (the first failing one is the minimum);
+   beyond that, ask a SAT solver for failing inputs of ever smaller measure
+   (cardinality constraints), until it answers that none is smaller.
 
 Merges speak only of the ``(m+1)(n-m+1)`` inputs with two ascending runs,
-so they are searched exhaustively.  When the inputs of phase 2 would exceed
-``max_vectors``, the result keeps the best counterexample found, with
-``minimal`` false.
+so they are searched exhaustively.  When the budget runs out, the result
+keeps the best counterexample found, with ``minimal`` false.
 """
 
 from __future__ import annotations
@@ -26,7 +27,11 @@ from typing import Iterator, Sequence
 import numpy as np
 
 from sortcheck.engines.base import Budget, Counterexample
+from pysat.card import CardEnc, EncType
+
 from sortcheck.engines.bitslice import LANES, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.network_cnf import encode_network, violation_clauses
+from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.explain.diagnose import permutation_of
 from sortcheck.explain.shrink import ZERO_ONE_PASSES, shrink, zero_one_measure
 from sortcheck.model import ComparatorNetwork, Merges, Property
@@ -47,10 +52,10 @@ def pack(vectors: np.ndarray) -> list[np.ndarray]:
     """
     count, channels = vectors.shape
     padded = -(-max(count, 1) // LANES) * LANES
-    matrix = np.zeros((channels, padded), dtype=np.uint8)
-    matrix[:, :count] = vectors.T
-    packed = np.packbits(matrix, axis=1, bitorder="little")
-    return [row.view("<u8").copy() for row in packed]
+    if padded != count:
+        vectors = np.concatenate([vectors, np.zeros((padded - count, channels), dtype=np.uint8)])
+    packed = np.packbits(vectors, axis=0, bitorder="little")  # (padded / 8, channels): pack first, then transpose
+    return list(np.ascontiguousarray(packed.T).view("<u8"))
 
 
 def failing(network: ComparatorNetwork, prop: Property, vectors: np.ndarray) -> np.ndarray:
@@ -74,36 +79,93 @@ class _Predicate:
         return failing(self.network, self.prop, np.array(vectors, dtype=np.uint8).reshape(len(vectors), -1))
 
 
-def _weight_vectors(channels: int, weight: int, ones: bool) -> Iterator[np.ndarray]:
-    """All vectors with ``weight`` ones (or ``weight`` zeros), in lexicographic order of positions, in batches."""
+def _weight_batches(channels: int, weight: int) -> Iterator[np.ndarray]:
+    """The positions of the ones of every vector with ``weight`` ones, lexicographically, as (count, weight) arrays."""
+    if weight == 0:
+        yield np.zeros((1, 0), dtype=np.int64)
+        return
     combinations = itertools.combinations(range(channels), weight)
     while True:
-        chunk = list(itertools.islice(combinations, BATCH))
-        if not chunk:
+        flat = np.fromiter(itertools.chain.from_iterable(itertools.islice(combinations, BATCH)), dtype=np.int64)
+        if flat.size == 0:
             return
-        matrix = np.zeros((len(chunk), channels), dtype=np.uint8)
-        if weight:
-            positions = np.array(chunk, dtype=np.int64)
-            matrix[np.arange(len(chunk))[:, None], positions] = 1
-        yield matrix if ones else 1 - matrix
+        yield flat.reshape(-1, weight)
+
+
+def _rows_of(positions: np.ndarray, channels: int, ones: bool) -> list[np.ndarray]:
+    """Bit-sliced rows of the vectors whose ones (or, for ``ones`` false, zeros) sit at ``positions``."""
+    count, weight = positions.shape
+    words = -(-count // LANES)
+    rows = np.zeros((channels, words), dtype=np.uint64)
+    lanes = np.repeat(np.arange(count, dtype=np.int64), weight)
+    np.bitwise_or.at(rows, (positions.ravel(), lanes // LANES), np.left_shift(np.uint64(1), (lanes % LANES)
+                                                                             .astype(np.uint64)))
+    if not ones:
+        rows = ~rows  # padding lanes become all-one vectors, which no network gets wrong
+    return list(rows)
 
 
 def _search_by_weight(network: ComparatorNetwork, prop: Property, below: int, budget: Budget,
-                      max_vectors: int) -> tuple[tuple[int, ...] | None, bool]:
-    """The first failing input of measure < ``below`` (None if none) and whether the search was complete."""
-    n = network.channels
-    needed = sum(math.comb(n, w) * (1 if 2 * w == n else 2) for w in range(below))
-    if needed > max_vectors:
-        return None, False
+                      max_vectors: int) -> tuple[tuple[int, ...] | None, int]:
+    """Evaluate every input of measure 0, 1, ... below ``below`` while ``max_vectors`` allows.
+
+    Returns the first failing input found (of least measure) or None, and the
+    measure up to which (exclusive) the search was complete.
+    """
+    n, spent = network.channels, 0
     for weight in range(below):
-        for ones in (True, False) if 2 * weight != n else (True,):
-            for matrix in _weight_vectors(n, weight, ones):
+        sides = (True, False) if 2 * weight != n else (True,)
+        spent += math.comb(n, weight) * len(sides)
+        if spent > max_vectors or budget.expired():
+            return None, weight
+        for ones in sides:
+            for positions in _weight_batches(n, weight):
                 if budget.expired():
-                    return None, False
-                hits = np.flatnonzero(failing(network, prop, matrix))
+                    return None, weight
+                rows = _rows_of(positions, n, ones)
+                apply_network(rows, network.comparators, np.empty_like(rows[0]))
+                bits = np.unpackbits(failure_mask(prop, rows).view(np.uint8), bitorder="little")[:len(positions)]
+                hits = np.flatnonzero(bits)
                 if hits.size:
-                    return tuple(int(v) for v in matrix[hits[0]]), True
-    return None, True
+                    vector = [0 if ones else 1] * n
+                    for position in positions[hits[0]]:
+                        vector[position] = 1 if ones else 0
+                    return tuple(vector), weight
+    return None, below
+
+
+def _search_by_sat(network: ComparatorNetwork, prop: Property, floor: int, best: tuple[int, ...], budget: Budget
+                   ) -> tuple[tuple[int, ...], int]:
+    """Lower the measure of ``best`` with a SAT solver, down to ``floor`` (below which none exists).
+
+    Each query asks for a failing input with at most ``k`` ones or at most
+    ``k`` zeros (cardinality constraints behind two selectors), for ``k`` one
+    below the best measure so far: satisfiable queries are usually quick and
+    only the last, unsatisfiable one proves minimality.  Returns the best
+    input and the measure below which no failing input exists (``floor`` if
+    the budget ran out first).
+    """
+    encoding = encode_network(network)
+    pool, inputs = encoding.pool, list(encoding.inputs)
+    condition = violation_clauses(prop, inputs, list(encoding.outputs), pool)
+    while zero_one_measure(best) > floor:
+        bound = zero_one_measure(best) - 1
+        clauses = encoding.clauses + condition
+        selectors = []
+        for side, literals in (("ones", inputs), ("zeros", [-x for x in inputs])):
+            selector = pool.id(("measure", side, bound))
+            selectors.append(selector)
+            cardinality = CardEnc.atmost(literals, bound=bound, vpool=pool, encoding=EncType.seqcounter)
+            clauses = clauses + [[-selector] + clause for clause in cardinality.clauses]
+        try:
+            model = solve_within(clauses + [selectors], budget)
+        except Interrupted:
+            return best, floor
+        if model is None:
+            return best, bound + 1
+        true = {literal for literal in model if literal > 0}
+        best = tuple(int(x in true) for x in inputs)
+    return best, floor
 
 
 def _merge_minimum(network: ComparatorNetwork, prop: Merges) -> tuple[int, ...]:
@@ -138,9 +200,12 @@ def minimize_network_counterexample(network: ComparatorNetwork, prop: Property, 
         best, complete = _merge_minimum(network, prop), True
     else:
         best = shrink(tuple(example.input), _Predicate(network, prop), ZERO_ONE_PASSES)
-        smaller, complete = _search_by_weight(network, prop, zero_one_measure(best), budget, max_vectors)
+        smaller, covered = _search_by_weight(network, prop, zero_one_measure(best), budget, max_vectors)
         if smaller is not None:
             best = smaller
+        elif covered < zero_one_measure(best):
+            best, covered = _search_by_sat(network, prop, covered, best, budget)
+        complete = covered >= zero_one_measure(best)
     output = tuple(network.apply(list(best)))
     reason = violation(prop, best, output)
     if reason is None:

@@ -77,7 +77,7 @@ class FileResult:
 
 
 #: Seconds the minimisation of a counterexample may take when no timeout is given.
-MINIMIZE_SECONDS = 30.0
+MINIMIZE_SECONDS = 10.0
 
 
 def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeout: float | None
