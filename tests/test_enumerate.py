@@ -205,9 +205,15 @@ def test_beyond_the_size_limit_the_engine_refuses_and_points_to_sat():
 
 
 def test_default_limit_refuses_large_networks_without_running():
-    verdict = check(build_family("merge-exchange", 64), Sorts())
+    verdict = check(build_family("merge-exchange", 64), Sorts(), engine="enumerate")
     assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.SIZE_LIMIT
     assert verdict.seconds < 5
+
+
+def test_auto_hands_networks_beyond_enumeration_to_sat():
+    verdict = check(build_family("merge-exchange", 64), Sorts())
+    assert verdict.status == Status.PROVED and verdict.engine == "sat"
+    assert "sat" in verdict.engine_reason
 
 
 def test_mergers_of_many_channels_are_cheap():
