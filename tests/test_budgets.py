@@ -73,3 +73,23 @@ def test_enumerate_honours_a_tiny_timeout():
     verdict = check(network, Sorts(), engine="enumerate", timeout=0.05)
     assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.TIMEOUT
     assert time.monotonic() - started < 1.05
+
+
+def test_enumerate_reports_progress_to_the_callback():
+    rng = random.Random(9)
+    network = ComparatorNetwork(28, tuple(tuple(rng.sample(range(28), 2)) for _ in range(150)))
+    calls = []
+    check(network, Sorts(), engine="enumerate", progress=lambda *call: calls.append(call), timeout=5)
+    assert calls and all(phase == "enumerate" for _, _, phase in calls)
+    assert all(total and 0 <= done <= total for done, total, _ in calls)
+
+
+def test_a_large_sat_check_is_stopped_within_the_budget_plus_a_second():
+    # An unstructured 600-channel network: the SAT engine cannot split it and must solve it whole.
+    network = build_family("odd-even-transposition", 600)
+    started = time.monotonic()
+    verdict = check(network, Sorts(), engine="sat", timeout=1.0)
+    assert time.monotonic() - started < 2.0
+    assert verdict.status in (Status.UNKNOWN, Status.PROVED)
+    if verdict.status == Status.UNKNOWN:
+        assert verdict.stop == StopReason.TIMEOUT

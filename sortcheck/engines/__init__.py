@@ -108,7 +108,8 @@ def check(netlist: Netlist, prop: Property | None = None, engine: str = "auto",
                            time.perf_counter() - started, engine_reason=reason)
     else:
         chosen, reason = get_engine(engine), f"requested with --engine {engine}"
-    if chosen.cooperative or budget.deadline is None:
+    isolated = not chosen.cooperative or getattr(chosen, "isolate", False)
+    if budget.deadline is None or not isolated:
         verdict = chosen.check(netlist, prop, budget, options)
     else:
         verdict = check_in_child(chosen, netlist, prop, budget, options)

@@ -187,8 +187,10 @@ class Engine(Protocol):
     ``refusal`` says, without doing the work, why the engine cannot take a
     check (None when it can); ``check`` does it within the budget.
     ``cooperative`` says whether ``check`` itself stops at the budget's
-    deadline; checks by engines that cannot (a solver stuck in native code)
-    are run in a process that can be ended.
+    deadline; checks by engines that cannot (a solver stuck in native code),
+    or that set an ``isolate`` attribute to True (some steps cannot be
+    interrupted), are run in a process that can be ended when a deadline is
+    set.
     """
 
     name: str

@@ -18,7 +18,7 @@ from sortcheck.engines.base import Budget, Engine, Options, Status, StopReason, 
 from sortcheck.model import Netlist, Property
 
 #: Seconds the child may run past the deadline before it is killed.
-GRACE = 0.5
+GRACE = 0.25
 
 #: How often the parent wakes up to report progress and check the deadline.
 POLL = 0.1

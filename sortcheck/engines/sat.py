@@ -134,6 +134,9 @@ class SatEngine:
 
     name = "sat"
     cooperative = True
+    #: Building and loading a CNF of hundreds of thousands of clauses cannot be interrupted, so with a
+    #: deadline the check runs in a process that can be ended (the solver itself is interrupted in time).
+    isolate = True
 
     def __init__(self, solver: str = SOLVER, enumeration_limit: int = ENUMERATION_LIMIT, split: bool = True,
                  simulation_rounds: int = SIMULATION_ROUNDS):
