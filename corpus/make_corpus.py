@@ -7,7 +7,6 @@ file gets the verdict listed in ``expected-verdicts.txt``.
 
 from __future__ import annotations
 
-import json
 from pathlib import Path
 
 from sortcheck.load import write_netlist

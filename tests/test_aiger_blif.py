@@ -9,7 +9,6 @@ a BLIF cover interpreter) for everything the writers produce.
 from __future__ import annotations
 
 import itertools
-import json
 import re
 
 import pytest

@@ -15,7 +15,7 @@ from sortcheck.engines import Status, check
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork
 from reference import breaks, run
-from test_enumerate import nearly_sorting, networks, properties_for
+from strategies import nearly_sorting, networks, properties_for
 
 ENGINES = ("enumerate", "sat", "smt")
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"

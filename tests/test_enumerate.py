@@ -17,47 +17,14 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 from sortcheck.engines import Budget, Status, StopReason, check
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, at_least, failure_mask
 from sortcheck.engines.enumeration import EnumerateEngine
-from sortcheck.model import ComparatorNetwork, Median, Merges, Selects, Sorts
+from sortcheck.model import ComparatorNetwork, Merges, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run
+from strategies import nearly_sorting, networks, properties_for, reference_holds
 
 
 def zero_one_inputs(n):
     return itertools.product((0, 1), repeat=n)
-
-
-def reference_holds(network, prop):
-    return not any(breaks(prop, list(v), run(network.comparators, v)) for v in zero_one_inputs(network.channels))
-
-
-def properties_for(n):
-    props = [Sorts(), Sorts(order="descending")]
-    props += [Merges(split=m) for m in range(1, n)]
-    props += [Selects(count=t, sorted=s) for t in range(1, n + 1) for s in (False, True)]
-    if n % 2:
-        props.append(Median())
-    return props
-
-
-@st.composite
-def networks(draw, max_channels=8, max_size=30):
-    n = draw(st.integers(1, max_channels))
-    if n == 1:
-        return ComparatorNetwork(1, ())
-    pair = st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)).filter(lambda p: p[0] != p[1])
-    return ComparatorNetwork(n, tuple(draw(st.lists(pair, max_size=max_size))))
-
-
-@st.composite
-def nearly_sorting(draw):
-    """A family network with one comparator removed or reversed: mostly hard, narrow failures."""
-    family = draw(st.sampled_from(["merge-exchange", "odd-even-transposition", "insertion", "pairwise"]))
-    network = build_family(family, draw(st.integers(2, 9)))
-    index = draw(st.integers(0, network.size - 1))
-    a, b = network.comparators[index]
-    replacement = draw(st.sampled_from([(), ((b, a),)]))
-    return ComparatorNetwork(network.channels, network.comparators[:index] + replacement
-                             + network.comparators[index + 1:])
 
 
 def assert_agrees(network, prop):

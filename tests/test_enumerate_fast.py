@@ -12,7 +12,6 @@ from __future__ import annotations
 import itertools
 import time
 
-import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
@@ -24,7 +23,7 @@ from sortcheck.engines.reduction import merge_groups, reduce_prefix, singleton_g
 from sortcheck.model import ComparatorNetwork, Median, Merges, Selects, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run
-from test_enumerate import nearly_sorting, networks, properties_for
+from strategies import nearly_sorting, networks, properties_for
 
 needs_numba = pytest.mark.skipif(not compiled.available(), reason="numba is not installed")
 

@@ -12,7 +12,7 @@ from sortcheck.explain.shrink import shrink, word_measure, zero_one_measure, ZER
 from sortcheck.model import ComparatorNetwork, Merges, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run
-from test_enumerate import networks, nearly_sorting, properties_for
+from strategies import networks, nearly_sorting, properties_for
 
 
 def brute_force_minimum(network, prop):

@@ -7,7 +7,6 @@ part pins the fast bulk predicates of the schema check to jsonschema itself.
 
 from __future__ import annotations
 
-import json
 import time
 
 import jsonschema

@@ -9,7 +9,6 @@ plain CNF.
 from __future__ import annotations
 
 import itertools
-import random
 import time
 from pathlib import Path
 
@@ -23,52 +22,22 @@ from sortcheck.engines.network_cnf import annotated_dimacs, plain_cnf
 from sortcheck.engines.redundancy import redundant_comparators
 from sortcheck.engines.sat import SatEngine
 from sortcheck.load import parse_netlist
-from sortcheck.model import ComparatorNetwork, Median, Merges, PartialSort, Selects, Sorts
-from sortcheck.model.families import bitonic, build_family, merge_exchange
+from sortcheck.model import ComparatorNetwork, PartialSort, Sorts
+from sortcheck.model.families import bitonic, merge_exchange
 from conftest import circuit_doc, text_of
 from reference import breaks, run
+from strategies import nearly_sorting, properties_for, reference_holds
+from strategies import networks as any_networks
+
+
+def networks(max_channels=8, max_size=30):
+    return any_networks(max_channels=max_channels, max_size=max_size, min_channels=2)
 
 ENCODINGS = Path(__file__).resolve().parent.parent / "encodings"
 
 #: The default engine, one that sends every part to the solver, and one SAT call on the whole network.
 ENGINES = {"default": SatEngine(), "sat-parts": SatEngine(enumeration_limit=0, simulation_rounds=0),
            "whole": SatEngine(split=False, simulation_rounds=0)}
-
-
-def reference_holds(network, prop):
-    return not any(breaks(prop, list(v), run(network.comparators, v))
-                   for v in itertools.product((0, 1), repeat=network.channels))
-
-
-def properties_for(n):
-    props = [Sorts(), Sorts(order="descending")]
-    props += [Merges(split=m) for m in range(1, n)]
-    props += [Selects(count=t, sorted=s) for t in range(1, n + 1) for s in (False, True)]
-    if n % 2:
-        props.append(Median())
-    return props
-
-
-@st.composite
-def networks(draw, max_channels=8, max_size=30):
-    n = draw(st.integers(2, max_channels))
-    pair = st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)).filter(lambda p: p[0] != p[1])
-    return ComparatorNetwork(n, tuple(draw(st.lists(pair, max_size=max_size))))
-
-
-@st.composite
-def nearly_sorting(draw):
-    """A family network with one comparator removed or reversed (or kept), and maybe reversed throughout."""
-    family = draw(st.sampled_from(["merge-exchange", "odd-even-transposition", "insertion", "pairwise", "bitonic"]))
-    n = draw(st.sampled_from([2, 4, 8])) if family == "bitonic" else draw(st.integers(2, 9))
-    network = build_family(family, n)
-    comparators = network.comparators
-    if draw(st.booleans()):
-        comparators = tuple((b, a) for a, b in comparators)  # a descending sorter
-    index = draw(st.integers(0, len(comparators) - 1))
-    a, b = comparators[index]
-    replacement = draw(st.sampled_from([(), ((b, a),), ((a, b),)]))
-    return ComparatorNetwork(n, comparators[:index] + replacement + comparators[index + 1:])
 
 
 def assert_agrees(network, prop, engine):

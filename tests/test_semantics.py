@@ -8,7 +8,7 @@ from sortcheck.engines import Status, check
 from sortcheck.model import Median, Merges, PartialSort, Selects, Sorts
 from sortcheck.model.semantics import violation
 from reference import breaks, run
-from test_enumerate import networks, properties_for
+from strategies import networks, properties_for
 
 values = st.integers(-4, 4)
 

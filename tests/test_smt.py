@@ -12,7 +12,6 @@ import itertools
 import math
 from pathlib import Path
 
-import pytest
 import z3
 from hypothesis import HealthCheck, given, settings, strategies as st
 from pysmt.environment import Environment
@@ -21,42 +20,18 @@ from pysmt.smtlib.script import smtlibscript_from_formula
 from sortcheck.engines import Budget, Status, StopReason, check
 from sortcheck.engines.base import Options
 from sortcheck.engines.smt import MAX_CHANNELS, SmtEngine, default_width, encode, smtlib_text
-from sortcheck.model import ComparatorNetwork, GateCircuit, Median, Merges, PartialSort, Selects, Sorts
+from sortcheck.model import ComparatorNetwork, GateCircuit, PartialSort, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run
+from strategies import nearly_sorting, properties_for
+from strategies import networks as any_networks
+
+
+def networks(max_channels=8, max_size=20):
+    return any_networks(max_channels=max_channels, max_size=max_size)
 
 ENCODINGS = Path(__file__).resolve().parent.parent / "encodings"
 ENGINE = SmtEngine()
-
-
-def properties_for(n):
-    props = [Sorts(), Sorts(order="descending"), Sorts(signed=True)]
-    props += [Merges(split=m) for m in range(1, n)]
-    props += [Selects(count=t, sorted=s) for t in range(1, n + 1) for s in (False, True)]
-    if n % 2:
-        props += [Median(), Median(signed=True)]
-    return props
-
-
-@st.composite
-def networks(draw, max_channels=8, max_size=20):
-    n = draw(st.integers(1, max_channels))
-    if n == 1:
-        return ComparatorNetwork(1, ())
-    pair = st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)).filter(lambda p: p[0] != p[1])
-    return ComparatorNetwork(n, tuple(draw(st.lists(pair, max_size=max_size))))
-
-
-@st.composite
-def nearly_sorting(draw):
-    """A family network with one comparator removed or reversed."""
-    family = draw(st.sampled_from(["merge-exchange", "odd-even-transposition", "insertion", "pairwise"]))
-    network = build_family(family, draw(st.integers(2, 8)))
-    index = draw(st.integers(0, network.size - 1))
-    a, b = network.comparators[index]
-    replacement = draw(st.sampled_from([(), ((b, a),)]))
-    return ComparatorNetwork(network.channels, network.comparators[:index] + replacement
-                             + network.comparators[index + 1:])
 
 
 def assert_agrees_with_enumerate(network, prop, width=None):

@@ -127,5 +127,7 @@ def redundant_comparators(network: ComparatorNetwork, budget: Budget) -> list[in
     return redundant_comparators_by_sat(network, budget)
 
 
-__all__ = ["Budget", "Counterexample", "Engine", "Options", "Progress", "Status", "StopReason", "Verdict", "ENGINES", "ENGINE_NAMES",
-           "check", "choose_engine", "get_engine", "redundant_comparators"]
+__all__ = [
+    "Budget", "Counterexample", "Engine", "Options", "Progress", "Status", "StopReason", "Verdict", "ENGINES",
+    "ENGINE_NAMES", "check", "choose_engine", "get_engine", "redundant_comparators",
+]

@@ -199,3 +199,13 @@ class Engine(Protocol):
     def refusal(self, netlist: Netlist, prop: Property, options: Options) -> tuple[StopReason, str] | None: ...
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options) -> Verdict: ...
+
+
+def refused_verdict(engine: Engine, netlist: Netlist, prop: Property, options: Options, started: float
+                    ) -> Verdict | None:
+    """The ``unknown`` verdict of a check ``engine`` refuses (None when it takes it); for ``check`` methods."""
+    refused = engine.refusal(netlist, prop, options)
+    if refused is None:
+        return None
+    return Verdict(Status.UNKNOWN, engine.name, prop, refused[0], f"nothing was checked: {refused[1]}",
+                   time.perf_counter() - started)

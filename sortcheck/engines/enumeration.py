@@ -33,7 +33,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from sortcheck.engines import compiled
-from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.product import Layout, NumpyEvaluator, evaluate, lanes_of
 from sortcheck.engines.reduction import (MAX_CHANNELS, ReducedSpace, first_layer_bound, merge_groups,
@@ -160,10 +160,9 @@ class EnumerateEngine:
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
         started = time.perf_counter()
-        refused = self.refusal(netlist, prop, options)
+        refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
-            return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
-                           time.perf_counter() - started)
+            return refused
         network: ComparatorNetwork = netlist  # type: ignore[assignment]
         if self.backend != "plain" and network.channels <= MAX_CHANNELS:
             run = self._reduced(network, prop, budget, options.count)

@@ -21,7 +21,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.engines.word_blocks import (ExhaustiveInputs, SampledInputs, WordBlock, limbs_to_keys,
                                            rows_to_limbs)
 from sortcheck.engines.word_checks import failing_lanes
@@ -303,10 +303,9 @@ class SimulateEngine:
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
         started = time.perf_counter()
-        refused = self.refusal(netlist, prop, options)
+        refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
-            return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
-                           time.perf_counter() - started)
+            return refused
         circuit: GateCircuit = netlist  # type: ignore[assignment]
         program = compile_circuit(circuit)
         if circuit.words * circuit.width <= self.max_exhaustive_bits:

@@ -40,7 +40,7 @@ import numpy as np
 from pysat.formula import IDPool
 
 from sortcheck.engines.solving import Interrupted, solve_within
-from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.network_cnf import chain_clauses, descent_clauses, encode_network, violation_clauses
 from sortcheck.engines.network_split import SortedParts, frontier, join_delayed_order, split_tree
@@ -158,10 +158,9 @@ class SatEngine:
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
         started = time.perf_counter()
-        refused = self.refusal(netlist, prop, options)
+        refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
-            return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
-                           time.perf_counter() - started)
+            return refused
         network: ComparatorNetwork = netlist  # type: ignore[assignment]
         tally = _Tally()
         try:

@@ -22,7 +22,7 @@ import time
 from dataclasses import dataclass
 from typing import Any, Callable
 
-from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
+from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.model import ComparatorNetwork, Median, Merges, Netlist, PartialSort, Property, Selects, Sorts
 from sortcheck.model.semantics import violation
 
@@ -309,10 +309,9 @@ class SmtEngine:
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
         started = time.perf_counter()
-        refused = self.refusal(netlist, prop, options)
+        refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
-            return Verdict(Status.UNKNOWN, self.name, prop, refused[0], f"nothing was checked: {refused[1]}",
-                           time.perf_counter() - started)
+            return refused
         network: ComparatorNetwork = netlist  # type: ignore[assignment]
         width = options.width or default_width(network.channels)
         figures: dict[str, Any] = {"width": width, "signed": prop.signed, "solver": _solver_name(),
