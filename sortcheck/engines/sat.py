@@ -43,8 +43,9 @@ from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.network_cnf import chain_clauses, descent_clauses, encode_network, violation_clauses
+from sortcheck.engines.order import relations_prove_sorted
 from sortcheck.engines.network_split import SortedParts, frontier, join_delayed_order, split_tree
-from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property
+from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
 from sortcheck.model.semantics import violation
 
 #: The SAT solver (python-sat name).
@@ -167,6 +168,15 @@ class SatEngine:
             failing = _simulate(network, prop, self.simulation_rounds, budget) if self.simulation_rounds else None
             if failing is not None:
                 return self._refuted(network, prop, failing, tally, "random simulation", started)
+            if isinstance(prop, Sorts) and relations_prove_sorted(network.channels, network.comparators,
+                                                                  prop.order == "descending", budget):
+                figures = self._figures(tally, "order relations", started)
+                scope = (f"every input on {network.channels} channels, of any values: order relations that hold "
+                         f"for every input, propagated through all {network.size} comparators, put every "
+                         f"adjacent pair of outputs in order (a direct argument on values; the 0-1 principle "
+                         f"is not needed)")
+                return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None,
+                               figures)
             failing, decided = self._prove(network, prop, budget, tally)
         except _Interrupted:
             return self._unknown(network, prop, tally, started)
