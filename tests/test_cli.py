@@ -23,6 +23,7 @@ import pytest
 
 from sortcheck.cli import main
 from sortcheck.load import parse_netlist
+from reference import run as evaluate  # comparators applied value by value, independently
 
 ROOT = Path(__file__).resolve().parent.parent
 CORPUS = ROOT / "corpus"
@@ -81,15 +82,6 @@ def comparators_of(path: str) -> tuple[int, list[tuple[int, int]]]:
     else:
         pairs = [pair for layer in doc["layers"] for pair in layer]
     return doc["channels"], [(a, b) for a, b in pairs]
-
-
-def evaluate(comparators, values) -> list[int]:
-    """Apply each comparator (a, b): the minimum goes to channel a, the maximum to channel b."""
-    wires = list(values)
-    for a, b in comparators:
-        low, high = min(wires[a], wires[b]), max(wires[a], wires[b])
-        wires[a], wires[b] = low, high
-    return wires
 
 
 def greedy_depth(channels: int, comparators) -> int:

@@ -18,6 +18,7 @@ import pytest
 from sortcheck.load.grouping import is_sidecar
 from sortcheck.load import dump_netlist
 from sortcheck.report import check_file
+from reference import run as evaluate  # comparators applied value by value, independently
 
 ROOT = Path(__file__).resolve().parent.parent
 CORPUS = ROOT / "corpus"
@@ -43,15 +44,6 @@ def raw(relative: str) -> dict:
 def comparators_of(doc: dict) -> list[tuple[int, int]]:
     pairs = doc["comparators"] if "comparators" in doc else [pair for layer in doc["layers"] for pair in layer]
     return [(a, b) for a, b in pairs]
-
-
-def evaluate(comparators, values) -> list[int]:
-    """Apply each comparator (a, b): the minimum goes to channel a, the maximum to channel b."""
-    wires = list(values)
-    for a, b in comparators:
-        low, high = min(wires[a], wires[b]), max(wires[a], wires[b])
-        wires[a], wires[b] = low, high
-    return wires
 
 
 def claim_of(doc: dict) -> dict:
