@@ -15,6 +15,7 @@ from typing import Sequence, TextIO
 
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
+from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
 from sortcheck.explain.draw import draw_network, parse_input_values
@@ -31,6 +32,7 @@ from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
     stats_report, summarise,
 )
+from sortcheck.report.equivalence_report import equivalence_exit, equivalence_json, format_equivalence
 from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line
 from sortcheck.report.sarif import sarif_report
@@ -146,6 +148,16 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("--property", metavar="SPEC")
     repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     repair.add_argument("--format", choices=("text", "json"), default="text")
+
+    equiv = commands.add_parser("equiv", help="prove that two netlists compute the same function, or find an "
+                                "input they disagree on")
+    equiv.add_argument("paths", nargs=2, metavar="PATH")
+    equiv.add_argument("--signed", action="store_true", help="a comparator network beside a gate circuit: compare "
+                       "two's complement words")
+    equiv.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
+    equiv.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    equiv.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
+    equiv.add_argument("--format", choices=("text", "json"), default="text")
     return parser
 
 
@@ -341,7 +353,18 @@ def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     return REPAIR_EXIT[outcome.status]
 
 
-COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build, "draw": run_draw, "repair": run_repair}
+def run_equiv(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    first, second = (read_netlist(path, args.words, args.width) for path in args.paths)
+    answer = equivalent(first, second, Budget.of(args.timeout), signed=args.signed, sources=args.paths)
+    if args.format == "json":
+        stdout.write(dumps(equivalence_json(*args.paths, answer)))
+    else:
+        stdout.write(format_equivalence(*args.paths, answer))
+    return equivalence_exit(answer)
+
+
+COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build, "draw": run_draw, "repair": run_repair,
+            "equiv": run_equiv}
 
 #: Exit status of ``repair`` by outcome: a verified repair (or nothing to repair) 0, none within the
 #: search 1, budget or undecided 3.

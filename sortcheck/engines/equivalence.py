@@ -1,0 +1,226 @@
+"""Whether two netlists compute the same function, and an input that tells them apart if not.
+
+Two comparator networks on the same channels are compared on 0-1 inputs: a
+comparator network commutes with every monotone map of values (a comparator
+of thresholded values is the threshold of the comparator), so if two networks
+agree on every 0-1 input, then for every threshold ``v`` their outputs'
+``[y >= v]`` vectors agree on every input, and so do their outputs.  One SAT
+call on a miter of the two networks' 0-1 circuits settles it for inputs of
+any values.
+
+Two gate circuits with the same input and output words are compared bit for
+bit: random simulation first (bit-parallel), then a miter (the two circuits
+on shared input variables, structurally hashed into one CNF, and "some output
+bit differs") solved by SAT.  A network and a gate circuit are compared at
+the circuit's width, the network lowered to gates first.
+
+Examples
+--------
+>>> from sortcheck.model import ComparatorNetwork
+>>> same = equivalent(ComparatorNetwork(3, ((0, 1), (1, 2), (0, 1))), ComparatorNetwork(3, ((1, 2), (0, 1), (1, 2))),
+...                   Budget())
+>>> same.status.value, same.method
+('proved', '0-1 miter (SAT)')
+>>> other = equivalent(ComparatorNetwork(3, ((0, 1),)), ComparatorNetwork(3, ((1, 2),)), Budget())
+>>> other.status.value, other.outputs[0] != other.outputs[1]
+('refuted', True)
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field
+from typing import Any, Sequence
+
+import numpy as np
+
+from sortcheck.engines.base import Budget, Status
+from sortcheck.engines.gate_cnf import CnfBuilder, encode_circuit
+from sortcheck.engines.gate_simulation import block_words_for, compile_circuit, evaluate_rows, new_table
+from sortcheck.engines.solving import Interrupted, solve_within
+from sortcheck.errors import UsageError
+from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
+from sortcheck.model.lowering import lower_network
+
+#: Random simulation rounds (blocks of bit-parallel inputs) before the miter is solved.
+SIMULATION_BLOCKS = 4
+
+
+@dataclass(frozen=True)
+class Equivalence:
+    """The answer of an equivalence check.
+
+    ``status`` is proved (the two compute the same function on every input in
+    scope), refuted (``input`` tells them apart; ``outputs`` are what each
+    computes on it) or unknown (the budget ran out).
+    """
+
+    status: Status
+    method: str
+    scope: str
+    seconds: float
+    input: tuple[int, ...] | None = None
+    outputs: tuple[tuple[int, ...], tuple[int, ...]] | None = None
+    figures: dict[str, Any] = field(default_factory=dict)
+
+    def to_json(self) -> dict[str, Any]:
+        data: dict[str, Any] = {"status": {"proved": "equal", "refuted": "different"}.get(self.status.value,
+                                                                                       "unknown"),
+                                "method": self.method, "scope": self.scope, "seconds": round(self.seconds, 6)}
+        if self.input is not None:
+            data["input"] = list(self.input)
+            data["outputs"] = [list(values) for values in self.outputs or ()]
+        data["figures"] = self.figures
+        return data
+
+
+def _shape(netlist: Netlist) -> str:
+    if isinstance(netlist, ComparatorNetwork):
+        return f"a comparator network of {netlist.channels} channels"
+    widths = sorted(set(netlist.widths))
+    width = f"{widths[0]} bits" if len(widths) == 1 else f"widths {list(netlist.widths)}"
+    outputs = sorted({word.width for word in netlist.outputs})
+    out_width = f"{outputs[0]} bits" if len(outputs) == 1 else f"widths {[w.width for w in netlist.outputs]}"
+    return f"a gate circuit of {netlist.words} input words of {width} and {len(netlist.outputs)} output words of " \
+           f"{out_width}"
+
+
+def _mismatch(first: Netlist, second: Netlist, sources: Sequence[str]) -> UsageError:
+    return UsageError(f"{_shape(second)}, but {sources[0]} is {_shape(first)}: they cannot compute the same "
+                      "function", sources[1])
+
+
+def comparable(first: Netlist, second: Netlist, signed: bool = False, sources: Sequence[str] = ("first", "second")
+               ) -> tuple[Netlist, Netlist]:
+    """The two netlists in comparable form (a network lowered when beside a gate circuit); UsageError if none."""
+    if isinstance(first, ComparatorNetwork) and isinstance(second, ComparatorNetwork):
+        if first.channels != second.channels:
+            raise _mismatch(first, second, sources)
+        return first, second
+    if isinstance(first, ComparatorNetwork) or isinstance(second, ComparatorNetwork):
+        circuit = second if isinstance(first, ComparatorNetwork) else first
+        network = first if isinstance(first, ComparatorNetwork) else second
+        if network.channels != circuit.words or len(set(circuit.widths)) != 1 \
+                or len(circuit.outputs) != circuit.words or {w.width for w in circuit.outputs} != {circuit.width}:
+            raise _mismatch(first, second, sources)
+        lowered = lower_network(network, circuit.width, style="mux", signed=signed)
+        return (lowered, circuit) if network is first else (circuit, lowered)
+    if first.widths != second.widths or [w.width for w in first.outputs] != [w.width for w in second.outputs]:
+        raise _mismatch(first, second, sources)
+    return first, second
+
+
+def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = False,
+               sources: Sequence[str] = ("first", "second")) -> Equivalence:
+    """Whether ``first`` and ``second`` compute the same function; see the module text.
+
+    Raises
+    ------
+    UsageError
+        When the two do not have the same input and output words.
+    """
+    started = time.perf_counter()
+    first, second = comparable(first, second, signed, sources)
+    if isinstance(first, ComparatorNetwork):
+        return _networks(first, second, budget, started)  # type: ignore[arg-type]
+    found = _simulate(first, second, budget)  # type: ignore[arg-type]
+    if found is not None:
+        return _differ(first, second, found, "random simulation", started, {"simulated_blocks": SIMULATION_BLOCKS})
+    return _miter(first, second, budget, started)  # type: ignore[arg-type]
+
+
+def _network_outputs(builder: CnfBuilder, network: ComparatorNetwork, inputs: Sequence[int]) -> list[int]:
+    """The output literals of ``network`` on 0-1 inputs: a comparator is an AND and an OR (hashed)."""
+    wires = list(inputs)
+    for a, b in network.comparators:
+        wires[a], wires[b] = builder.and_([wires[a], wires[b]]), builder.or_([wires[a], wires[b]])
+    return wires
+
+
+def _networks(first: ComparatorNetwork, second: ComparatorNetwork, budget: Budget, started: float) -> Equivalence:
+    builder = CnfBuilder()
+    inputs = [builder.variable(("input", channel)) for channel in range(first.channels)]
+    pairs = zip(_network_outputs(builder, first, inputs), _network_outputs(builder, second, inputs))
+    differs = builder.or_(builder.xor2(a, b) for a, b in pairs)
+    clauses = builder.clauses + [[differs]]
+    method = "0-1 miter (SAT)"
+    figures = {"variables": builder.pool.top, "clauses": len(clauses), "nodes_shared": builder.asked - builder.encoded}
+    try:
+        model = solve_within(clauses, budget)
+    except Interrupted:
+        return Equivalence(Status.UNKNOWN, method, "the time budget ran out before the SAT solver answered; nothing "
+                           "is proved", time.perf_counter() - started, figures=figures)
+    if model is None:
+        scope = (f"the two networks give the same outputs on every 0-1 input of {first.channels} channels, hence "
+                 "(comparator networks commute with monotone maps) on every input of any values")
+        return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
+    true = set(literal for literal in model if literal > 0)
+    values = tuple(int(variable in true) for variable in inputs)
+    return _differ(first, second, values, method, started, figures)
+
+
+def _simulate(first: GateCircuit, second: GateCircuit, budget: Budget, seed: int = 20261201) -> tuple[int, ...] | None:
+    """An input found by random bit-parallel simulation on which the two circuits differ, or None."""
+    programs = compile_circuit(first), compile_circuit(second)
+    words = min(block_words_for(program) for program in programs)
+    tables = [new_table(program, words) for program in programs]
+    generator = np.random.default_rng(seed)
+    for _ in range(SIMULATION_BLOCKS):
+        if budget.expired():
+            return None
+        rows = generator.integers(0, 1 << 64, size=(programs[0].input_bits, words), dtype=np.uint64)
+        outputs = [evaluate_rows(program, table, rows) for program, table in zip(programs, tables)]
+        difference = np.bitwise_or.reduce(outputs[0] ^ outputs[1], axis=0)
+        where = np.flatnonzero(difference)
+        if where.size:
+            column = int(where[0])
+            word = int(difference[column])
+            lane = (word & -word).bit_length() - 1  # the lowest differing lane
+            bits = [(int(rows[row, column]) >> lane) & 1 for row in range(rows.shape[0])]
+            return _words_of(first, bits)
+    return None
+
+
+def _words_of(circuit: GateCircuit, bits: Sequence[int]) -> tuple[int, ...]:
+    values, position = [], 0
+    for word in circuit.inputs:
+        values.append(sum(bit << i for i, bit in enumerate(bits[position:position + word.width])))
+        position += word.width
+    return tuple(values)
+
+
+def _miter(first: GateCircuit, second: GateCircuit, budget: Budget, started: float) -> Equivalence:
+    builder = CnfBuilder()
+    left = encode_circuit(builder, first)
+    right = encode_circuit(builder, second, inputs=left.inputs)
+    pairs = [(a, b) for word_a, word_b in zip(left.outputs, right.outputs) for a, b in zip(word_a, word_b)]
+    differs = builder.or_(builder.xor2(a, b) for a, b in pairs)
+    method = "miter (SAT)"
+    figures = {"variables": builder.pool.top, "clauses": len(builder.clauses) + 1,
+               "nodes_shared": builder.asked - builder.encoded}
+    if differs == builder.false:
+        scope = "the two circuits are structurally the same after hashing: every output bit is the same node"
+        return Equivalence(Status.PROVED, "structural hashing", scope, time.perf_counter() - started, figures=figures)
+    try:
+        model = solve_within(builder.clauses + [[differs]], budget)
+    except Interrupted:
+        return Equivalence(Status.UNKNOWN, method, "the time budget ran out before the SAT solver answered; nothing "
+                           "is proved", time.perf_counter() - started, figures=figures)
+    if model is None:
+        scope = (f"the two circuits give the same output bits on every input of {first.words} words of widths "
+                 f"{list(first.widths)} (all {sum(first.widths)} input bits free)")
+        return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
+    true = set(literal for literal in model if literal > 0)
+    bits = [int(literal in true) for word in left.inputs for literal in word]
+    return _differ(first, second, _words_of(first, bits), method, started, figures)
+
+
+def _differ(first: Netlist, second: Netlist, values: tuple[int, ...], method: str, started: float,
+            figures: dict[str, Any]) -> Equivalence:
+    outputs = tuple(first.apply(list(values)) if isinstance(first, ComparatorNetwork) else first.evaluate(values))
+    others = tuple(second.apply(list(values)) if isinstance(second, ComparatorNetwork) else second.evaluate(values))
+    if outputs == others:  # the encoding and the evaluators disagree
+        raise AssertionError(f"internal error: input {values} was reported to tell the netlists apart but does not")
+    scope = "this input gives different outputs (both netlists were run on it)"
+    return Equivalence(Status.REFUTED, method, scope, time.perf_counter() - started, values, (outputs, others),
+                       figures)

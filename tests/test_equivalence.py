@@ -1,0 +1,105 @@
+"""Equivalence of two netlists, checked against direct evaluation on every input.
+
+References: the comparators applied value by value (``tests/reference.py``,
+independent of the package) on every 0-1 input and on every permutation of
+distinct values; for lowered gate circuits, the same comparators on every
+input of small words.
+"""
+
+from __future__ import annotations
+
+import itertools
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from reference import run
+from sortcheck.engines import Budget, Status
+from sortcheck.engines.equivalence import equivalent
+from sortcheck.errors import UsageError
+from sortcheck.model import ComparatorNetwork, Gate, GateCircuit
+from sortcheck.model.families import build_family
+from sortcheck.model.lowering import lower_network
+from strategies import networks
+
+
+def same_function(first, second, n):
+    """Reference: equal on every permutation of n distinct values (which covers every order pattern up to ties)
+    and on every 0-1 input."""
+    inputs = itertools.chain(itertools.permutations(range(n)), itertools.product((0, 1), repeat=n))
+    return all(run(first.comparators, list(v)) == run(second.comparators, list(v)) for v in inputs)
+
+
+@st.composite
+def network_pairs(draw):
+    first = draw(networks(max_channels=6, max_size=12, min_channels=2))
+    if draw(st.booleans()):
+        second = draw(networks(max_channels=first.channels, max_size=12, min_channels=first.channels))
+    else:  # a small edit of the first: swap two neighbours or drop one comparator
+        comparators = list(first.comparators)
+        if len(comparators) >= 2:
+            i = draw(st.integers(0, len(comparators) - 2))
+            comparators[i], comparators[i + 1] = comparators[i + 1], comparators[i]
+        second = ComparatorNetwork(first.channels, tuple(comparators))
+    return first, second
+
+
+@settings(max_examples=120, deadline=None)
+@given(network_pairs())
+def test_networks_agree_with_exhaustive_evaluation(pair):
+    first, second = pair
+    answer = equivalent(first, second, Budget())
+    assert (answer.status == Status.PROVED) == same_function(first, second, first.channels)
+    if answer.status == Status.REFUTED:
+        assert run(first.comparators, list(answer.input)) != run(second.comparators, list(answer.input))
+        assert answer.outputs == (tuple(run(first.comparators, list(answer.input))),
+                                  tuple(run(second.comparators, list(answer.input))))
+
+
+def test_two_different_sorters_lowered_in_different_styles_are_equal():
+    # Both sort (Knuth, TAOCP vol. 3, 5.3.4: merge exchange and bitonic sorters), so both compute sorted(x).
+    first = lower_network(build_family("merge-exchange", 4), 3, style="and-or")
+    second = lower_network(build_family("bitonic", 4), 3, style="xor")
+    answer = equivalent(first, second, Budget())
+    assert answer.status == Status.PROVED and answer.method == "miter (SAT)"
+    for values in itertools.product(range(8), repeat=4):  # the reference: Python's sorted on every input
+        assert first.evaluate(values) == sorted(values) == second.evaluate(values)
+
+
+def test_a_flipped_gate_is_told_apart_with_an_input_that_really_differs():
+    network = build_family("merge-exchange", 4)
+    circuit = lower_network(network, 3, style="mux")
+    for index in range(0, len(circuit.gates), 7):
+        gate = circuit.gates[index]
+        if gate.op == "mux":
+            continue
+        flipped = {"and": "or", "or": "and", "xor": "xnor", "xnor": "xor", "not": "not"}[gate.op]
+        if flipped == gate.op:
+            continue
+        gates = circuit.gates[:index] + (Gate(gate.out, flipped, gate.inputs),) + circuit.gates[index + 1:]
+        mutant = GateCircuit(circuit.inputs, gates, circuit.outputs)
+        answer = equivalent(circuit, mutant, Budget())
+        differs = any(mutant.evaluate(v) != sorted(v) for v in itertools.product(range(8), repeat=4))
+        assert (answer.status == Status.REFUTED) == differs
+        if differs:
+            assert mutant.evaluate(answer.input) != run(network.comparators, list(answer.input))
+
+
+def test_a_network_against_a_gate_circuit_is_compared_at_the_circuit_width():
+    network = build_family("odd-even-transposition", 4)
+    circuit = lower_network(build_family("merge-exchange", 4), 2, style="and-or")
+    assert equivalent(network, circuit, Budget()).status == Status.PROVED
+    broken = ComparatorNetwork(4, network.comparators[:-1])
+    answer = equivalent(broken, circuit, Budget())
+    assert answer.status == Status.REFUTED
+    assert run(broken.comparators, list(answer.input)) != sorted(answer.input)
+
+
+def test_netlists_of_different_shapes_are_refused_with_both_names():
+    with pytest.raises(UsageError, match="b.json: a comparator network of 5 channels, but a.json is a comparator "
+                                         "network of 4 channels"):
+        equivalent(build_family("insertion", 4), build_family("insertion", 5), Budget(), sources=("a.json", "b.json"))
+    with pytest.raises(UsageError, match="3 bits"):
+        equivalent(lower_network(build_family("insertion", 4), 2), lower_network(build_family("insertion", 4), 3),
+                   Budget())
