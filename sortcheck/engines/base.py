@@ -80,6 +80,46 @@ class Counterexample:
 
 
 @dataclass(frozen=True)
+class UnsatCall:
+    """One unsatisfiable SAT call a proof rests on: the CNF as DIMACS (variables named in comments) and the
+    solver's DRUP proof, one step a line.  ``label`` says what the call proves."""
+
+    label: str
+    dimacs: str
+    proof: str
+    solver: str
+    claim: dict[str, Any] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Enumerated:
+    """A part proved by evaluating every 0-1 vector of a set: how many, and a SHA-256 digest of a
+    deterministic description of them (``claim``, JSON-ready, enough to evaluate them again)."""
+
+    label: str
+    vectors: int
+    digest: str
+    claim: dict[str, Any] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class CertificateMaterial:
+    """What a proved verdict rests on, for an independent check (engines fill it with ``Options(certify=True)``).
+
+    ``method`` is ``"drup"`` (SAT calls only), ``"enumeration"`` (evaluation only), ``"drup+enumeration"``
+    or ``"order-relations"`` (a relation propagation, listed in ``relations``); ``complete`` is False when some
+    part of the proof is not covered by the material (then no certificate can be issued).
+    """
+
+    method: str
+    calls: tuple[UnsatCall, ...] = ()
+    enumerated: tuple[Enumerated, ...] = ()
+    relations: dict[str, Any] | None = None
+    complete: bool = True
+    note: str = ""
+
+
+@dataclass(frozen=True)
 class Verdict:
     """The outcome of one check of one netlist for one property.
 
@@ -102,6 +142,8 @@ class Verdict:
         Present exactly when the status is refuted.
     figures : dict
         Engine figures (vectors evaluated, blocks, ...), JSON-ready.
+    certificate : CertificateMaterial or None
+        What a proof rests on, when certification was asked for and the engine supports it.
     """
 
     status: Status
@@ -113,11 +155,12 @@ class Verdict:
     counterexample: Counterexample | None = None
     figures: dict[str, Any] = field(default_factory=dict)
     engine_reason: str | None = None
+    certificate: CertificateMaterial | None = None
 
     def with_choice(self, reason: str, seconds: float) -> "Verdict":
         """A copy that records why the engine was chosen and the total time."""
         return Verdict(self.status, self.engine, self.prop, self.stop, self.scope, seconds, self.counterexample,
-                       self.figures, reason)
+                       self.figures, reason, self.certificate)
 
 
 #: A progress callback: (units done, units in all or None, phase) -> None.
@@ -135,20 +178,30 @@ class Budget:
     progress : callable or None
         Called now and then as ``progress(done, total, phase)``; engines call
         :meth:`report`, which does nothing without a callback.
+    stopped : callable or None
+        An extra stop condition, ``stopped() -> bool``, consulted by
+        :meth:`expired` (a piece of a split check polls it to learn that the
+        whole check no longer needs it); None for none.
 
     >>> Budget.of(None).expired()
     False
+    >>> Budget(stopped=lambda: True).expired()
+    True
     """
 
     deadline: float | None = None
     progress: Progress | None = field(default=None, compare=False)
+    stopped: Callable[[], bool] | None = field(default=None, compare=False)
 
     @classmethod
-    def of(cls, timeout: float | None, progress: Progress | None = None) -> "Budget":
-        return cls(None if timeout is None else time.monotonic() + timeout, progress)
+    def of(cls, timeout: float | None, progress: Progress | None = None,
+           stopped: Callable[[], bool] | None = None) -> "Budget":
+        return cls(None if timeout is None else time.monotonic() + timeout, progress, stopped)
 
     def expired(self) -> bool:
-        return self.deadline is not None and time.monotonic() >= self.deadline
+        if self.deadline is not None and time.monotonic() >= self.deadline:
+            return True
+        return self.stopped is not None and bool(self.stopped())
 
     def remaining(self) -> float | None:
         return None if self.deadline is None else max(0.0, self.deadline - time.monotonic())
@@ -159,7 +212,7 @@ class Budget:
             self.progress(done, total, phase)
 
     def without_progress(self) -> "Budget":
-        """The same deadline with no callback (for work done in another process)."""
+        """The same deadline with no callback and no stop condition (for work done in another process)."""
         return Budget(self.deadline)
 
 
@@ -175,10 +228,14 @@ class Options:
     count : bool
         Count every failing 0-1 input instead of stopping at the first
         (``enumerate``); the count goes into ``figures["failing_inputs"]``.
+    certify : bool
+        Gather certificate material (``Verdict.certificate``): DRUP proofs of SAT calls, digests of
+        enumerated vectors (``enumerate``, ``sat``); proof logging costs solver time.
     """
 
     width: int | None = None
     count: bool = False
+    certify: bool = False
 
 
 class Engine(Protocol):

@@ -27,13 +27,16 @@ re-checked with :func:`sortcheck.model.semantics.violation`.
 
 from __future__ import annotations
 
+import hashlib
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from sortcheck.engines import compiled
-from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
+from sortcheck.engines.base import (Budget, CertificateMaterial, Counterexample, Enumerated, Options, Status,
+                                    StopReason, Verdict, refused_verdict)
+from sortcheck.engines.certificates import canonical, network_digest
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.product import Layout, NumpyEvaluator, evaluate, lanes_of
 from sortcheck.engines.reduction import (MAX_CHANNELS, ReducedSpace, first_layer_bound, merge_groups,
@@ -104,6 +107,7 @@ class _Run:
     prefix: int = 0
     suffix: int = 0
     largest_set: int = 0
+    digest: str | None = None  # of the evaluated vectors, with Options(certify=True)
 
 
 class EnumerateEngine:
@@ -165,12 +169,23 @@ class EnumerateEngine:
             return refused
         network: ComparatorNetwork = netlist  # type: ignore[assignment]
         if self.backend != "plain" and network.channels <= MAX_CHANNELS:
-            run = self._reduced(network, prop, budget, options.count)
+            run = self._reduced(network, prop, budget, options.count, options.certify)
         else:
             run = _plain(network, prop, budget, options.count)
-        return self._verdict(network, prop, run, options.count, started)
+            if options.certify:
+                run.digest = _digest(network, prop, {"inputs": "every 0-1 input in index order"}, [])
+        verdict = self._verdict(network, prop, run, options.count, started)
+        if options.certify and verdict.status == Status.PROVED:
+            claim = {"target": {"property": prop.to_json()},
+                     "inputs": {"merge": prop.split} if isinstance(prop, Merges) else "all",
+                     "evaluated": run.reduced, "prefix_comparators": run.prefix}
+            record = Enumerated(f"{prop.short()} on every 0-1 input the property speaks about", run.reduced,
+                                run.digest, claim)
+            verdict = replace(verdict, certificate=CertificateMaterial("enumeration", enumerated=(record,)))
+        return verdict
 
-    def _reduced(self, network: ComparatorNetwork, prop: Property, budget: Budget, count: bool) -> _Run:
+    def _reduced(self, network: ComparatorNetwork, prop: Property, budget: Budget, count: bool,
+                 certify: bool = False) -> _Run:
         groups = (merge_groups(network.channels, prop.split) if isinstance(prop, Merges)
                   else singleton_groups(network.channels))
         if self.reduction:
@@ -181,6 +196,8 @@ class EnumerateEngine:
         evaluator = self._evaluator(network, space, layout, prop, budget)
         run = _Run(False, 0, layout.vectors, 0, kernel=evaluator.name, prefix=len(space.prefix_swaps),
                    suffix=len(space.suffix), largest_set=space.largest_set)
+        if certify:
+            run.digest = _digest(network, prop, {"suffix": list(space.suffix)}, space.groups)
         first = evaluate(layout, evaluator, "count" if count else "first", budget)
         run.blocks, run.evaluated, run.finished = first.calls, first.evaluated, first.finished
         if count and first.finished:
@@ -230,6 +247,17 @@ class EnumerateEngine:
             scope += f"; {figures['failing_inputs']:,} of the {figures['vectors_total']:,} 0-1 inputs fail"
         return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope, figures["seconds"],
                        Counterexample(failing, output, "0-1", reason), figures)
+
+
+def _digest(network: ComparatorNetwork, prop: Property, description: dict, groups) -> str:
+    """SHA-256 over the network, the property and the vectors evaluated: each group's channels and its
+    distinct vectors in ascending order (their product is the list evaluated, in a fixed order)."""
+    digest = hashlib.sha256(canonical({"network": network_digest(network), "property": prop.to_json(),
+                                       **description}))
+    for group in groups:
+        digest.update(canonical(list(group.channels)))
+        digest.update(np.sort(group.vectors).astype("<u8").tobytes())
+    return digest.hexdigest()
 
 
 def use_compiled(backend: str, layout: Layout, suffix: int, budget: Budget) -> bool:

@@ -18,15 +18,19 @@ class Interrupted(Exception):
 
 
 def solve_within(clauses: Sequence[Sequence[int]], budget: Budget, solver: str = INTERRUPTIBLE_SOLVER,
-                 assumptions: Sequence[int] = ()) -> list[int] | None:
+                 assumptions: Sequence[int] = (), proof: list[str] | None = None) -> list[int] | None:
     """A model of ``clauses`` (under ``assumptions``), None when unsatisfiable; :class:`Interrupted` at the deadline.
+
+    With a ``proof`` list, the solver logs a DRUP proof (it must support proof logging, as glucose does)
+    and, when the clauses are unsatisfiable, its steps are appended to the list, one a line.
 
     >>> solve_within([[1, 2], [-1]], Budget())
     [-1, 2]
-    >>> solve_within([[1], [-1]], Budget()) is None
-    True
+    >>> steps = []
+    >>> solve_within([[1, 2], [-1, 2], [1, -2], [-1, -2]], Budget(), proof=steps) is None, steps[-1]
+    (True, '0')
     """
-    with Solver(name=solver, bootstrap_with=clauses) as engine:
+    with Solver(name=solver, bootstrap_with=clauses, with_proof=proof is not None) as engine:
         remaining = budget.remaining()
         if remaining is not None and remaining <= 0:
             raise Interrupted
@@ -41,4 +45,6 @@ def solve_within(clauses: Sequence[Sequence[int]], budget: Budget, solver: str =
                 timer.cancel()
         if answer is None:
             raise Interrupted
+        if not answer and proof is not None:
+            proof.extend(engine.get_proof() or ())
         return engine.get_model() if answer else None

@@ -1,0 +1,282 @@
+"""An independent checker of DRUP proofs: every lemma must follow by reverse unit propagation.
+
+A DRUP proof of a CNF's unsatisfiability is a list of lines, each a *lemma*
+(a clause, ``1 -2 0``) or a *deletion* (``d 1 -2 0``).  A lemma is accepted
+when assigning the negation of its literals and propagating units over the
+clauses held so far (the CNF, accepted lemmas, minus deletions) ends in a
+conflict (RUP); it is then held like any clause.  The proof is accepted when
+the clauses held become contradictory by unit propagation alone (the empty
+clause is a lemma like any other).  Every accepted lemma is implied by the
+CNF, so acceptance proves the CNF unsatisfiable.
+
+This module imports nothing from the rest of sortcheck: it reads DIMACS and
+proof text and trusts no encoder or solver.  Propagation uses two watched
+literals per clause, against a trail of assignments that unit propagation
+forces at the top level (kept between lemmas).  A deletion of a clause that
+is the reason of a top-level assignment is not carried out (solvers delete
+such clauses once the assignment is fixed, and a checker that honoured it
+would have to forget the assignment); keeping a clause can only make more
+lemmas follow from clauses that are all implied by the CNF, so this stays
+sound.  Deletions of clauses that are not held are ignored and counted.
+
+>>> result = check_proof("p cnf 2 4\\n1 2 0\\n-1 2 0\\n1 -2 0\\n-1 -2 0\\n", "2 0\\n0\\n")
+>>> result.accepted, result.lemmas
+(True, 2)
+>>> check_proof("p cnf 2 3\\n1 2 0\\n-1 2 0\\n1 -2 0\\n", "2 0\\n0\\n").accepted
+False
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from typing import Iterable, Iterator
+
+
+class ProofFormatError(ValueError):
+    """The CNF or the proof text is not well formed (the message names the line)."""
+
+
+@dataclass(frozen=True)
+class ProofCheck:
+    """The outcome of checking one proof.
+
+    ``failed_line`` is the 1-based line of the proof whose lemma did not
+    follow (None when every lemma did); ``reason`` says in words why the
+    proof was accepted or rejected.
+    """
+
+    accepted: bool
+    reason: str
+    lemmas: int
+    deletions: int
+    kept_deletions: int
+    missing_deletions: int
+    failed_line: int | None
+    seconds: float
+
+    def to_json(self) -> dict:
+        return {"accepted": self.accepted, "reason": self.reason, "lemmas": self.lemmas,
+                "deletions": self.deletions, "kept_deletions": self.kept_deletions,
+                "missing_deletions": self.missing_deletions, "failed_line": self.failed_line,
+                "seconds": round(self.seconds, 4)}
+
+
+def parse_dimacs(text: str) -> tuple[int, list[list[int]]]:
+    """The variable count and clauses of DIMACS CNF text (comment lines skipped).
+
+    >>> parse_dimacs("c a comment\\np cnf 3 2\\n1 -3 0\\n2\\n3 0\\n")
+    (3, [[1, -3], [2, 3]])
+    """
+    header: tuple[int, int] | None = None
+    clauses: list[list[int]] = []
+    current: list[int] = []
+    for number, line in enumerate(text.splitlines(), 1):
+        stripped = line.strip()
+        if not stripped or stripped.startswith("c") or stripped.startswith("%"):
+            continue
+        if stripped.startswith("p"):
+            parts = stripped.split()
+            if header is not None or len(parts) != 4 or parts[1] != "cnf":
+                raise ProofFormatError(f"CNF line {number}: bad header {stripped!r}")
+            header = (_number(parts[2], number, "CNF"), _number(parts[3], number, "CNF"))
+            continue
+        if header is None:
+            raise ProofFormatError(f"CNF line {number}: clause before the 'p cnf' header")
+        for token in stripped.split():
+            literal = _literal(token, number, "CNF")
+            if literal == 0:
+                clauses.append(current)
+                current = []
+            else:
+                current.append(literal)
+    if header is None:
+        raise ProofFormatError("CNF: no 'p cnf' header")
+    if current:
+        raise ProofFormatError("CNF: the last clause has no terminating 0")
+    variables, count = header
+    if count != len(clauses):
+        raise ProofFormatError(f"CNF: the header announces {count} clauses, the text has {len(clauses)}")
+    if any(abs(literal) > variables for clause in clauses for literal in clause):
+        raise ProofFormatError(f"CNF: a literal exceeds the {variables} variables of the header")
+    return variables, clauses
+
+
+def parse_proof(text: str) -> Iterator[tuple[int, bool, list[int]]]:
+    """``(line, is_deletion, literals)`` for each step of a text DRUP proof.
+
+    >>> list(parse_proof("1 2 0\\nd 1 2 0\\n0\\n"))
+    [(1, False, [1, 2]), (2, True, [1, 2]), (3, False, [])]
+    """
+    for number, line in enumerate(text.splitlines(), 1):
+        tokens = line.split()
+        if not tokens or tokens[0].startswith("c"):
+            continue
+        deletion = tokens[0] == "d"
+        if deletion:
+            tokens = tokens[1:]
+        literals = [_literal(token, number, "proof") for token in tokens]
+        if not literals or literals[-1] != 0 or 0 in literals[:-1]:
+            raise ProofFormatError(f"proof line {number}: a step must be literals ending in one 0")
+        yield number, deletion, literals[:-1]
+
+
+def _number(token: str, line: int, what: str) -> int:
+    if not token.isdigit():
+        raise ProofFormatError(f"{what} line {line}: expected a count, got {token!r}")
+    return int(token)
+
+
+def _literal(token: str, line: int, what: str) -> int:
+    body = token[1:] if token.startswith("-") else token
+    if not body.isdigit():
+        raise ProofFormatError(f"{what} line {line}: expected a literal, got {token!r}")
+    return int(token)
+
+
+class _Database:
+    """Clauses with two watched literals, and the top-level trail unit propagation forces."""
+
+    def __init__(self, variables: int):
+        self.value = [0] * (variables + 1)  # +1 true, -1 false, 0 unassigned
+        self.reason = [-1] * (variables + 1)
+        self.trail: list[int] = []
+        self.head = 0
+        self.clauses: list[list[int]] = []
+        self.alive: list[bool] = []
+        self.watches: dict[int, list[int]] = {}
+        self.by_key: dict[tuple[int, ...], list[int]] = {}
+        self.contradictory = False
+
+    def _true(self, literal: int) -> bool:
+        return self.value[abs(literal)] == (1 if literal > 0 else -1)
+
+    def _false(self, literal: int) -> bool:
+        return self.value[abs(literal)] == (-1 if literal > 0 else 1)
+
+    def _assign(self, literal: int, reason: int) -> None:
+        self.value[abs(literal)] = 1 if literal > 0 else -1
+        self.reason[abs(literal)] = reason
+        self.trail.append(literal)
+
+    def add(self, literals: Iterable[int]) -> None:
+        """Hold a clause (top-level propagation follows)."""
+        clause = list(dict.fromkeys(literals))
+        if any(-literal in clause for literal in clause):
+            return  # a tautology constrains nothing
+        index = len(self.clauses)
+        self.clauses.append(clause)
+        self.alive.append(True)
+        self.by_key.setdefault(tuple(sorted(clause)), []).append(index)
+        if self.contradictory:
+            return
+        clause.sort(key=lambda literal: self._false(literal))  # literals that are not false first
+        if not clause or self._false(clause[0]):
+            self.contradictory = True
+            return
+        if len(clause) >= 2:
+            self.watches.setdefault(clause[0], []).append(index)
+            self.watches.setdefault(clause[1], []).append(index)
+        if (len(clause) == 1 or self._false(clause[1])) and not self._true(clause[0]):
+            self._assign(clause[0], index)
+            if not self.propagate():
+                self.contradictory = True
+
+    def delete(self, literals: list[int]) -> str:
+        """Stop holding one copy of a clause: ``"deleted"``, ``"kept"`` (a reason) or ``"missing"``."""
+        copies = self.by_key.get(tuple(sorted(set(literals))))
+        if not copies:
+            return "missing"
+        index = copies[-1]
+        clause = self.clauses[index]
+        if any(self.reason[abs(literal)] == index and self._true(literal) for literal in clause):
+            return "kept"
+        copies.pop()
+        self.alive[index] = False  # watch lists drop it lazily
+        return "deleted"
+
+    def propagate(self) -> bool:
+        """Unit propagation from the unprocessed part of the trail; False on a conflict."""
+        value, clauses, alive, watches = self.value, self.clauses, self.alive, self.watches
+        while self.head < len(self.trail):
+            false_literal = -self.trail[self.head]
+            self.head += 1
+            watching = watches.get(false_literal)
+            if not watching:
+                continue
+            kept: list[int] = []
+            for position, index in enumerate(watching):
+                if not alive[index]:
+                    continue
+                clause = clauses[index]
+                if clause[0] == false_literal:
+                    clause[0], clause[1] = clause[1], false_literal
+                other = clause[0]
+                other_value = value[abs(other)] if other > 0 else -value[abs(other)]
+                if other_value == 1:
+                    kept.append(index)
+                    continue
+                for k in range(2, len(clause)):
+                    candidate = clause[k]
+                    if (value[abs(candidate)] if candidate > 0 else -value[abs(candidate)]) != -1:
+                        clause[1], clause[k] = candidate, false_literal
+                        watches.setdefault(candidate, []).append(index)
+                        break
+                else:
+                    kept.append(index)
+                    if other_value == -1:
+                        kept.extend(watching[position + 1:])
+                        watches[false_literal] = kept
+                        return False
+                    self._assign(other, index)
+            watches[false_literal] = kept
+        return True
+
+    def implied(self, lemma: list[int]) -> bool:
+        """Whether ``lemma`` follows by reverse unit propagation (the state is restored after)."""
+        if self.contradictory or any(self._true(literal) or -literal in lemma for literal in lemma):
+            return True  # already satisfied at the top level, or a tautology
+        mark = len(self.trail)
+        for literal in lemma:
+            if not self._false(literal):
+                self._assign(-literal, -1)
+        conflict = not self.propagate()
+        for literal in self.trail[mark:]:
+            self.value[abs(literal)] = 0
+            self.reason[abs(literal)] = -1
+        del self.trail[mark:]
+        self.head = mark
+        return conflict
+
+
+def check_proof(cnf_text: str, proof_text: str) -> ProofCheck:
+    """Check a text DRUP proof of the CNF's unsatisfiability (see the module text)."""
+    started = time.perf_counter()
+    variables, clauses = parse_dimacs(cnf_text)
+    steps = list(parse_proof(proof_text))
+    largest = max((abs(literal) for _, _, literals in steps for literal in literals), default=0)
+    database = _Database(max(variables, largest))
+    for clause in clauses:
+        database.add(clause)
+    lemmas = deletions = kept = missing = 0
+
+    def outcome(accepted: bool, reason: str, failed: int | None = None) -> ProofCheck:
+        return ProofCheck(accepted, reason, lemmas, deletions, kept, missing, failed, time.perf_counter() - started)
+
+    for line, deletion, literals in steps:
+        if database.contradictory:
+            break
+        if deletion:
+            deletions += 1
+            done = database.delete(literals)
+            kept += done == "kept"
+            missing += done == "missing"
+            continue
+        lemmas += 1
+        if not database.implied(literals):
+            return outcome(False, f"the lemma on proof line {line} does not follow by unit propagation", line)
+        database.add(literals)
+    if database.contradictory:
+        return outcome(True, f"every lemma follows by unit propagation and the clauses held are contradictory "
+                             f"({lemmas} lemmas checked)")
+    return outcome(False, "the proof ends before the clauses held are contradictory (no empty clause follows)")
