@@ -38,9 +38,9 @@ from sortcheck.engines.base import (Budget, CertificateMaterial, Counterexample,
                                     StopReason, Verdict, refused_verdict)
 from sortcheck.engines.certificates import canonical, network_digest
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
+from sortcheck.engines.enumeration_pieces import check_block, estimated_seconds, fits_blocks, piece_list, reduced_layout
 from sortcheck.engines.product import Layout, NumpyEvaluator, evaluate, lanes_of
-from sortcheck.engines.reduction import (MAX_CHANNELS, ReducedSpace, first_layer_bound, merge_groups,
-                                         reduce_prefix, singleton_groups)
+from sortcheck.engines.reduction import MAX_CHANNELS, ReducedSpace, first_layer_bound, reduce_prefix, singleton_groups
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property
 from sortcheck.model.semantics import violation
 
@@ -184,15 +184,60 @@ class EnumerateEngine:
             verdict = replace(verdict, certificate=CertificateMaterial("enumeration", enumerated=(record,)))
         return verdict
 
+    def pieces(self, netlist: Netlist, prop: Property, options: Options = Options()) -> list[dict] | None:
+        """Blocks of the evaluation order of the reduced vectors (:mod:`sortcheck.engines.enumeration_pieces`).
+
+        None when the check is refused, does not go through the reduction,
+        gathers certificate material, or is too small to be worth splitting.
+
+        >>> from sortcheck.model import Sorts
+        >>> EnumerateEngine().pieces(ComparatorNetwork(3, ((0, 1), (1, 2))), Sorts()) is None
+        True
+        """
+        if (self.refusal(netlist, prop, options) is not None or options.certify
+                or not fits_blocks(netlist, prop, self.backend)):
+            return None
+        space, layout = reduced_layout(netlist, prop, self.reduction)
+        kernel = self._compiled_kernel(layout, len(space.suffix))
+        return piece_list(layout, estimated_seconds(layout, len(space.suffix), kernel))
+
+    def check_piece(self, netlist: Netlist, prop: Property, piece: dict, budget: Budget,
+                    options: Options = Options()) -> Verdict:
+        """The check restricted to one piece of :meth:`pieces`."""
+        started = time.perf_counter()
+        refused = refused_verdict(self, netlist, prop, options, started)
+        if refused is not None:
+            return refused
+        return check_block(netlist, prop, piece, budget, options, self.reduction, self._compiled_kernel, self.name)
+
+    def _compiled_kernel(self, layout: Layout, suffix: int) -> bool:
+        return use_compiled(self.backend, layout, suffix, Budget())
+
+    def whole_verdict(self, netlist: Netlist, prop: Property, verdict: Verdict, options: Options = Options()
+                      ) -> Verdict:
+        """The combined verdict of the pieces, in the words and figures of a single check."""
+        figures = verdict.figures
+        if "vectors_after_reduction" not in figures or verdict.stop == StopReason.UNSUPPORTED:
+            return verdict  # no piece got as far as its layout, or a worker's layout differed
+        count = options.count and "failing_inputs" in figures and "pieces_unfinished" not in figures
+        run = _Run(verdict.status != Status.UNKNOWN, figures.get("vectors_evaluated", 0),
+                   figures["vectors_after_reduction"], figures.get("blocks", 0),
+                   verdict.counterexample.input if verdict.counterexample else None,
+                   figures.get("failing_inputs") if count else None, figures.get("kernel", "numpy"),
+                   figures.get("prefix_comparators", 0), figures.get("suffix_comparators", 0),
+                   figures.get("largest_set", 0))
+        whole = self._verdict(netlist, prop, run, count, time.perf_counter() - verdict.seconds)
+        extra = {key: figures[key] for key in ("pieces", "ran_on", "piece_seconds", "pieces_unfinished")
+                 if key in figures}
+        scope = f"{whole.scope}; checked in {figures.get('pieces')} pieces on {figures.get('ran_on')}"
+        if options.count and not count:
+            scope += "; the count of failing inputs is incomplete, since not every piece finished"
+        return Verdict(whole.status, whole.engine, prop, whole.stop, scope, verdict.seconds, whole.counterexample,
+                       {**whole.figures, "seconds": verdict.seconds, **extra})
+
     def _reduced(self, network: ComparatorNetwork, prop: Property, budget: Budget, count: bool,
                  certify: bool = False) -> _Run:
-        groups = (merge_groups(network.channels, prop.split) if isinstance(prop, Merges)
-                  else singleton_groups(network.channels))
-        if self.reduction:
-            space = reduce_prefix(network.channels, network.comparators, groups, budget)
-        else:
-            space = ReducedSpace(network.channels, tuple(groups), tuple(range(network.size)), {}, 2, True)
-        layout = Layout(space)
+        space, layout = reduced_layout(network, prop, self.reduction, budget)
         evaluator = self._evaluator(network, space, layout, prop, budget)
         run = _Run(False, 0, layout.vectors, 0, kernel=evaluator.name, prefix=len(space.prefix_swaps),
                    suffix=len(space.suffix), largest_set=space.largest_set)

@@ -12,6 +12,7 @@ from dataclasses import dataclass, replace
 from typing import Any, Iterable
 
 from sortcheck.engines import Budget, Options, Progress, Verdict, check
+from sortcheck.engines.distribute import check_split
 from sortcheck.errors import SortcheckError
 from sortcheck.explain import (
     Diagnosis, Trace, diagnose_network, minimize_network_counterexample, permutation_of, trace_network,
@@ -44,6 +45,8 @@ class FileResult:
     seconds: float = 0.0
     diagnosis: Diagnosis | None = None
     trace: Trace | None = None
+    #: ``{"certified": bool, "certificate": {...}}`` when certificates were asked for (``--certify``).
+    certification: dict[str, Any] | None = None
 
     @property
     def status(self) -> str:
@@ -73,6 +76,7 @@ class FileResult:
             "figures": verdict.figures if verdict else None,
             "diagnosis": self.diagnosis.to_json() if self.diagnosis else None,
             "trace": self.trace.to_json() if self.trace else None,
+            **(self.certification or {}),
         }
 
 
@@ -99,7 +103,7 @@ def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeo
 
 def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
                options: Options = Options(), progress: Progress | None = None, minimize: bool = True,
-               words: int | None = None) -> FileResult:
+               words: int | None = None, runner=None) -> FileResult:
     """Load one file and check it; never raises for bad input.
 
     ``prop`` (from the command line) overrides the property the file claims;
@@ -107,7 +111,9 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
     the engine (see :func:`sortcheck.engines.check`); a counterexample is
     minimised unless ``minimize`` is false (within ``timeout`` again, or
     :data:`MINIMIZE_SECONDS`), then diagnosed and traced.  ``words`` and
-    ``options.width`` group the bits of AIGER and BLIF files.
+    ``options.width`` group the bits of AIGER and BLIF files.  With a
+    ``runner`` (:mod:`sortcheck.engines.distribute`) a check that splits into
+    pieces runs them there, and the figures say where the work ran.
     """
     started = time.perf_counter()
     netlist = None
@@ -116,8 +122,11 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
         netlist = read_netlist(path, words, options.width)
         chosen = prop or netlist.claim or DEFAULT_PROPERTY
         check_fits(chosen, netlist, path, where="--property" if prop else "property")
-        verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path, options=options,
-                        progress=progress)
+        if runner is None:
+            verdict = check(netlist, chosen, engine=engine, timeout=timeout, source=path, options=options,
+                            progress=progress)
+        else:
+            verdict = check_split(netlist, chosen, engine, timeout, path, options, progress, runner)
         verdict, diagnosis, trace = explain_refutation(netlist, verdict, minimize, timeout)
     except SortcheckError as error:
         return _error_result(path, netlist, chosen, error, started)

@@ -1,0 +1,340 @@
+"""Run the pieces of a split check: in this process, on local worker processes, or on a Dask cluster.
+
+:func:`check_split` is :func:`sortcheck.engines.check` with a *runner*: when
+the chosen engine offers ``pieces`` (see :mod:`sortcheck.engines.pieces`)
+and splits the check, the runner runs the pieces and
+:func:`~sortcheck.engines.pieces.combine` makes one verdict of them; otherwise
+the check runs whole, in this process.  Every runner gives the same verdict,
+counterexample and counts: the first refuted piece in piece order decides,
+so pieces before it always finish and pieces after it are cancelled.
+
+* :class:`InProcess` runs the pieces one after another here.
+* :class:`LocalProcesses` runs them on worker processes it starts and ends
+  itself: a piece that is no longer needed (a counterexample came from an
+  earlier piece, or the deadline passed) is stopped by ending its process,
+  which also stops a solver stuck in native code.
+* :class:`DaskCluster` submits them to a ``dask.distributed`` scheduler.
+  Dask cancels only pieces not yet started, so running pieces poll a
+  ``distributed.Variable`` holding the number of the first refuted piece
+  (through their budget's ``stopped`` condition, at most every
+  :data:`POLL_SECONDS`), and a piece whose worker dies is run again by Dask.
+"""
+
+from __future__ import annotations
+
+import multiprocessing
+import multiprocessing.connection
+import os
+import time
+import traceback
+import uuid
+from collections import deque
+from typing import Any, Sequence
+
+from sortcheck.engines import check, choose_engine, get_engine
+from sortcheck.engines.base import Budget, Options, Progress, Status, Verdict
+from sortcheck.engines.isolation import EngineFailure
+from sortcheck.engines.pieces import combine, job_data, run_job
+from sortcheck.errors import UsageError
+from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
+
+#: How often a waiting runner wakes up (deadline, progress), and how often a Dask piece asks whether to stop.
+POLL_SECONDS = 0.1
+
+#: A piece whose local worker process dies is tried this many times in all.
+ATTEMPTS = 2
+
+
+class InProcess:
+    """Run pieces one after another in this process (stopping at the first refuted piece unless counting)."""
+
+    def __init__(self, ran_on: str = "this process"):
+        self.ran_on = ran_on
+
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+        verdicts: list[Verdict | None] = [None] * len(jobs)
+        for number, data in enumerate(jobs):
+            if budget.expired():
+                break
+            budget.report(number, len(jobs), f"{engine.name}: pieces")
+            verdicts[number] = run_job(engine, data, budget.stopped)
+            if verdicts[number].status == Status.REFUTED and not complete:
+                break
+        return verdicts
+
+    def close(self) -> None:
+        pass
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+
+def _context() -> multiprocessing.context.BaseContext:
+    methods = multiprocessing.get_all_start_methods()
+    return multiprocessing.get_context("fork" if "fork" in methods else "spawn")
+
+
+def _serve(connection: Any) -> None:
+    """A worker process: run the jobs it is sent, answer each with its verdict, until told to stop."""
+    while True:
+        try:
+            message = connection.recv()
+        except EOFError:
+            return
+        if message is None:
+            return
+        number, engine, data = message
+        try:
+            answer = ("verdict", run_job(engine, data))
+        except BaseException as error:  # reported to the parent, which raises it there
+            answer = ("error", "".join(traceback.format_exception(error)).strip())
+        connection.send((number, answer))
+
+
+class _Worker:
+    def __init__(self, context):
+        self.connection, child_end = context.Pipe()
+        self.process = context.Process(target=_serve, args=(child_end,), daemon=True)
+        self.process.start()
+        child_end.close()
+        self.piece: int | None = None
+
+    def stop(self) -> None:
+        if self.process.is_alive():
+            self.process.kill()
+        self.process.join(timeout=5)
+        self.connection.close()
+
+
+class LocalProcesses:
+    """Run pieces on ``jobs`` worker processes of this machine, started when first needed.
+
+    Pieces are handed out in piece order, one per idle worker.  When a piece
+    is refuted (and not every piece is needed, as for counting), the
+    workers running later pieces are ended at once; at the deadline every
+    worker still running is ended.
+    """
+
+    def __init__(self, jobs: int):
+        if jobs < 1:
+            raise ValueError("jobs must be at least 1")
+        self.jobs = jobs
+        self.ran_on = f"{jobs} local process{'es' if jobs != 1 else ''}"
+        self._context = _context()
+        self._idle: list[_Worker] = []
+
+    def _worker(self) -> _Worker:
+        return self._idle.pop() if self._idle else _Worker(self._context)
+
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+        verdicts: list[Verdict | None] = [None] * len(jobs)
+        waiting = deque(range(len(jobs)))
+        attempts = [0] * len(jobs)
+        busy: dict[Any, _Worker] = {}
+        first_refuted = len(jobs)
+        try:
+            while busy or (waiting and waiting[0] < first_refuted):
+                while waiting and waiting[0] < first_refuted and len(busy) < self.jobs:
+                    number = waiting.popleft()
+                    worker = self._worker()
+                    worker.piece, attempts[number] = number, attempts[number] + 1
+                    worker.connection.send((number, engine, jobs[number]))
+                    busy[worker.connection] = worker
+                if budget.expired():
+                    break
+                budget.report(sum(v is not None for v in verdicts), len(jobs), f"{engine.name}: pieces")
+                for connection in multiprocessing.connection.wait(list(busy), timeout=POLL_SECONDS):
+                    worker = busy.pop(connection)
+                    try:
+                        number, (kind, payload) = connection.recv()
+                    except (EOFError, OSError):
+                        self._lost(worker, attempts, waiting, engine)
+                        continue
+                    if kind == "error":
+                        worker.stop()
+                        raise EngineFailure(f"the {engine.name} engine failed on piece {number + 1}:\n{payload}")
+                    verdicts[number] = payload
+                    worker.piece = None
+                    self._idle.append(worker)
+                    if payload.status == Status.REFUTED and not complete and number < first_refuted:
+                        first_refuted = number
+                        for other in [w for w in busy.values() if w.piece > number]:
+                            busy.pop(other.connection).stop()
+        finally:
+            for worker in busy.values():
+                worker.stop()
+        return verdicts
+
+    def _lost(self, worker: _Worker, attempts: list[int], waiting: deque, engine) -> None:
+        """A worker process died under a piece: run the piece again on a new one, or give up."""
+        number = worker.piece
+        code = worker.process.exitcode
+        worker.stop()
+        if attempts[number] >= ATTEMPTS:
+            raise EngineFailure(f"the {engine.name} engine's process ended without an answer on piece "
+                                f"{number + 1} (exit code {code}), {attempts[number]} times")
+        waiting.appendleft(number)
+
+    def close(self) -> None:
+        for worker in self._idle:
+            try:
+                worker.connection.send(None)
+            except OSError:
+                pass
+            worker.stop()
+        self._idle = []
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+
+def _dask_piece(engine, data: dict, number: int, stop_name: str) -> Verdict:
+    """A piece on a Dask worker: stops when the first refuted piece (in the shared Variable) comes before it."""
+    from distributed import Variable, get_client
+
+    stop = Variable(stop_name, client=get_client())
+    state = {"asked": 0.0, "stopped": False}
+
+    def stopped() -> bool:
+        now = time.monotonic()
+        if not state["stopped"] and now - state["asked"] >= POLL_SECONDS:
+            state["asked"] = now
+            try:
+                state["stopped"] = stop.get(timeout=5) < number
+            except Exception:  # the client went away: nobody waits for this piece
+                state["stopped"] = True
+        return state["stopped"]
+
+    return run_job(engine, data, stopped)
+
+
+class DaskCluster:
+    """Run pieces on the workers of a ``dask.distributed`` scheduler at ``address`` (``tcp://host:8786``).
+
+    Workers need sortcheck installed (the same version).  A piece whose worker
+    dies is resubmitted by Dask.
+    """
+
+    def __init__(self, address: str, connect_seconds: float = 10.0):
+        try:
+            from distributed import Client
+        except ImportError:
+            raise UsageError("--cluster needs dask.distributed: pip install 'sortcheck[cluster]'",
+                             "--cluster") from None
+        try:
+            self.client = Client(address, timeout=connect_seconds)
+        except (OSError, TimeoutError) as error:
+            raise UsageError(f"cannot reach a Dask scheduler at {address}: {error}", "--cluster") from None
+        self.address = address
+        self.ran_on = f"dask {address}"
+
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+        from distributed import Variable, wait
+
+        run_id = uuid.uuid4().hex
+        stop_name = f"sortcheck-stop-{run_id}"
+        stop = Variable(stop_name, client=self.client)
+        stop.set(len(jobs))
+        futures = [self.client.submit(_dask_piece, engine, data, number, stop_name, pure=False,
+                                      key=f"sortcheck-piece-{run_id}-{number}")
+                   for number, data in enumerate(jobs)]
+        verdicts: list[Verdict | None] = [None] * len(jobs)
+        first_refuted = len(jobs)
+        try:
+            while any(verdicts[n] is None and not futures[n].cancelled() for n in range(first_refuted)):
+                if budget.expired():
+                    break
+                budget.report(sum(v is not None for v in verdicts), len(jobs), f"{engine.name}: pieces")
+                pending = [f for n, f in enumerate(futures[:first_refuted]) if verdicts[n] is None]
+                wait(pending, timeout=POLL_SECONDS, return_when="FIRST_COMPLETED")
+                for number in range(first_refuted):
+                    future = futures[number]
+                    if verdicts[number] is None and future.done():
+                        verdicts[number] = future.result()
+                        if verdicts[number].status == Status.REFUTED and not complete and number < first_refuted:
+                            first_refuted = number
+                            stop.set(number)
+                            self.client.cancel(futures[number + 1:])
+        finally:
+            stop.set(-1)
+            self.client.cancel([f for f in futures if not f.done()])
+            stop.delete()
+        return verdicts
+
+    def close(self) -> None:
+        self.client.close()
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+
+def default_jobs() -> int:
+    """The number of worker processes ``--jobs`` defaults to: the cores of this machine."""
+    return os.cpu_count() or 1
+
+
+def make_runner(jobs: int | None = None, cluster: str | None = None):
+    """The runner for ``--jobs`` and ``--cluster``: Dask, local processes (jobs > 1) or this process."""
+    if cluster:
+        return DaskCluster(cluster)
+    jobs = default_jobs() if jobs is None else jobs
+    return LocalProcesses(jobs) if jobs > 1 else InProcess()
+
+
+def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
+                source: str | None = None, options: Options = Options(), progress: Progress | None = None,
+                runner=None) -> Verdict:
+    """:func:`sortcheck.engines.check`, with the pieces of a check that splits run by ``runner``.
+
+    The verdict's figures say where the work ran (``ran_on``) and in how many
+    pieces (``pieces``; 1 for a check run whole in this process).
+
+    >>> from sortcheck.model import ComparatorNetwork
+    >>> verdict = check_split(ComparatorNetwork(2, ((0, 1),)), runner=InProcess())
+    >>> verdict.status.value, verdict.figures["ran_on"], verdict.figures["pieces"]
+    ('proved', 'this process', 1)
+    """
+    started = time.perf_counter()
+    prop = prop or netlist.claim or DEFAULT_PROPERTY
+    check_fits(prop, netlist, source)
+    if engine == "auto":
+        chosen, _, reason = choose_engine(netlist, prop, options)
+    else:
+        chosen, reason = get_engine(engine), f"requested with --engine {engine}"
+    pieces = None
+    if runner is not None and chosen is not None and hasattr(chosen, "pieces"):
+        pieces = chosen.pieces(netlist, prop, options)
+    if not pieces or len(pieces) < 2:
+        verdict = check(netlist, prop, engine, timeout, source, options, progress)
+        return _with_figures(verdict, {"ran_on": "this process", "pieces": 1})
+    budget = Budget.of(timeout, progress)
+    return run_pieces(chosen, netlist, prop, pieces, budget, options, runner).with_choice(
+        reason, time.perf_counter() - started)
+
+
+def run_pieces(engine, netlist: Netlist, prop: Property, pieces: Sequence[dict], budget: Budget, options: Options,
+               runner) -> Verdict:
+    """Run ``pieces`` of ``engine``'s check with ``runner`` and combine their verdicts."""
+    started = time.perf_counter()
+    deadline = None if budget.deadline is None else time.time() + (budget.remaining() or 0.0)
+    jobs = [job_data(engine.name, netlist, prop, piece, options, deadline) for piece in pieces]
+    verdicts = runner.run(engine, jobs, budget, complete=options.count)
+    combined = combine(engine.name, prop, verdicts, runner.ran_on, time.perf_counter() - started,
+                       complete=options.count)
+    if hasattr(engine, "whole_verdict"):
+        combined = engine.whole_verdict(netlist, prop, combined, options)
+    return combined
+
+
+def _with_figures(verdict: Verdict, extra: dict) -> Verdict:
+    return Verdict(verdict.status, verdict.engine, verdict.prop, verdict.stop, verdict.scope, verdict.seconds,
+                   verdict.counterexample, {**verdict.figures, **extra}, verdict.engine_reason, verdict.certificate)
