@@ -1,0 +1,109 @@
+"""The ``sat`` engine's step through independent sorting sub-networks (see :mod:`sortcheck.engines.network_blocks`).
+
+Before a question goes to the SAT solver, the engine looks for sub-networks
+on disjoint channel sets at the start of its comparators.  Each is proved to
+sort its channels on every input, as a network of its own, by the same
+engine (random simulation, order relations, the split, and this step again,
+so Parberry's pairwise network on ``n`` channels comes down to the pairwise
+networks on ``n/2, n/4, ...``; identical sub-networks are proved once).  The
+comparators after them are then checked on every vector the sub-networks can
+hand on, by enumeration.  When a sub-network is not proved to sort, or the
+vectors are too many, the step gives way to the solver.
+
+>>> from sortcheck.engines.base import Budget
+>>> from sortcheck.engines.sat import SatEngine
+>>> from sortcheck.model import Sorts
+>>> from sortcheck.model.families import pairwise
+>>> verdict = SatEngine().check(pairwise(32), Sorts(), Budget())   # 3^16 vectors after the first layer
+>>> verdict.status.value, verdict.figures["sub_networks_proved"], verdict.figures["sat_calls"]
+('proved', 2, 0)
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from sortcheck.engines.base import Budget
+from sortcheck.engines.network_blocks import ReachableVectors, block_network, canonical, find_blocks
+from sortcheck.engines.network_split import SortedParts
+from sortcheck.engines.order import relations_prove_sorted
+from sortcheck.model import ComparatorNetwork, Sorts
+
+#: Sub-networks nested deeper than this inside one another are not looked for (each level has fewer channels).
+BLOCK_DEPTH = 24
+
+
+@dataclass
+class BlockTally:
+    """What the step did over one check."""
+
+    #: Sub-networks taken as proved sorters (each use counted), and the distinct ones (each proved once).
+    used: int = 0
+    distinct: int = 0
+    #: Canonical sub-network -> the order it was proved to sort in, or None when it was not.
+    sorters: dict = field(default_factory=dict)
+    #: How deep the current question is nested inside sub-network proofs.
+    depth: int = 0
+
+
+class BlockSteps:
+    """The step as methods of the engine: it needs the engine's ``_prove``, ``_enumerate`` and ``_sample``."""
+
+    #: The most count vectors one check after the sub-networks may enumerate.
+    block_limit: int
+
+    def _by_blocks(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
+                   tally) -> tuple[tuple[int, ...] | None, str] | None:
+        """Decide the question through sorting sub-networks that ``comparators`` begin with; None if there are none.
+
+        Returns the failing vector (sorted on ``groups``, a real failing
+        vector of the question) or None, and the method, like ``_decide``.
+        """
+        blocks_tally: BlockTally = tally.blocks
+        if blocks_tally.depth >= BLOCK_DEPTH:
+            return None
+        pairs = [network.comparators[i] for i in comparators]
+        blocks = find_blocks(pairs, [c for members, _ in groups for c in members])
+        if blocks is None or math.prod(len(block) + 1 for block in blocks.channels) > self.block_limit:
+            return None
+        orders = []
+        for channels, members in zip(blocks.channels, blocks.members):
+            order = self._sorts_alone(block_network([pairs[p] for p in members], channels), budget, tally)
+            if order is None:
+                return None
+            orders.append(order)
+        blocks_tally.used += len(blocks.channels)
+        source = ReachableVectors(groups, list(zip(blocks.channels, orders)))
+        tally.parts_enumerated += 1
+        failing = self._enumerate(network, source, [comparators[p] for p in blocks.after], target, budget, tally)
+        return failing, "split"
+
+    def _sorts_alone(self, network: ComparatorNetwork, budget: Budget, tally) -> str | None:
+        """The order (``"ascending"``, ``"descending"``) ``network`` is proved to sort every input in, or None."""
+        if network.channels < 2:
+            return "ascending"
+        blocks_tally: BlockTally = tally.blocks
+        key = canonical(network)
+        if key not in blocks_tally.sorters:
+            blocks_tally.sorters[key] = self._prove_sorts(network, budget, tally)
+            blocks_tally.distinct += blocks_tally.sorters[key] is not None
+        return blocks_tally.sorters[key]
+
+    def _prove_sorts(self, network: ComparatorNetwork, budget: Budget, tally) -> str | None:
+        """Random vectors pick the order; order relations or the engine's split then prove it (or not)."""
+        singles = SortedParts([((channel,), "ascending") for channel in range(network.channels)])
+        everything = list(range(network.size))
+        channels = tuple(range(network.channels))
+        for order in ("ascending", "descending"):
+            if self._sample(network, singles, everything, ("sorted", channels, order), budget) is not None:
+                continue
+            if relations_prove_sorted(network.channels, network.comparators, order == "descending", budget):
+                return order
+            tally.blocks.depth += 1
+            try:
+                failing, _ = self._prove(network, Sorts(order=order), budget, tally)
+            finally:
+                tally.blocks.depth -= 1
+            return order if failing is None else None
+        return None
