@@ -15,6 +15,7 @@ from typing import Sequence, TextIO
 
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
+from sortcheck.engines.distribute import default_jobs, make_runner
 from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
@@ -106,8 +107,12 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--no-minimize", action="store_true",
                        help="report the engine's first counterexample instead of a provably smallest one")
     check.add_argument("--quiet", action="store_true", help="no progress display on standard error")
-    check.add_argument("--jobs", type=_jobs, default=1, metavar="N", help="check N files at a time in "
-                       "separate processes (default: 1)")
+    check.add_argument("--jobs", type=_jobs, default=None, metavar="N",
+                       help="worker processes: a large check is split into pieces run on N processes, and "
+                            "several files are checked N at a time (default: the number of cores)")
+    check.add_argument("--cluster", metavar="ADDRESS",
+                       help="run the pieces of large checks on a Dask scheduler (tcp://host:8786); needs "
+                            "pip install 'sortcheck[cluster]'")
     check.add_argument("--format", choices=REPORT_FORMATS, default="text", help="report format")
     check.add_argument("--output", metavar="FILE", help="write the report to FILE (a text report still "
                                                         "goes to the terminal)")
@@ -194,23 +199,27 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
             for request in requests]
 
 
-def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=None) -> FileResult:
+def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=None,
+                   runner=None) -> FileResult:
     options = Options(width=request.width, count=count)
     return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
-                      minimize, request.words)
+                      minimize, request.words, runner)
 
 
 def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
-    if args.jobs > 1 and len(requests) > 1:
+    if args.jobs is None:
+        args.jobs = default_jobs()
+    if args.jobs > 1 and len(requests) > 1 and not args.cluster:
         with ProcessPoolExecutor(max_workers=min(args.jobs, len(requests))) as pool:
             return list(pool.map(_check_request, requests, [args.count] * len(requests),
                                  [not args.no_minimize] * len(requests)))
     results = []
-    for request in requests:
-        progress = progress_line(stderr, request.path, args.quiet)
-        results.append(_check_request(request, args.count, not args.no_minimize, progress))
-        if progress is not None:
-            progress.clear()
+    with make_runner(args.jobs, args.cluster) as runner:
+        for request in requests:
+            progress = progress_line(stderr, request.path, args.quiet)
+            results.append(_check_request(request, args.count, not args.no_minimize, progress, runner))
+            if progress is not None:
+                progress.clear()
     return results
 
 

@@ -33,7 +33,7 @@ from typing import Any, Sequence
 
 from sortcheck.engines import check, choose_engine, get_engine
 from sortcheck.engines.base import Budget, Options, Progress, Status, Verdict
-from sortcheck.engines.isolation import EngineFailure
+from sortcheck.engines.isolation import EngineFailure, check_in_child
 from sortcheck.engines.pieces import combine, job_data, run_job
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
@@ -46,10 +46,15 @@ ATTEMPTS = 2
 
 
 class InProcess:
-    """Run pieces one after another in this process (stopping at the first refuted piece unless counting)."""
+    """Run pieces one after another in this process (stopping at the first refuted piece unless counting).
 
-    def __init__(self, ran_on: str = "this process"):
+    With ``splits`` False (the runner of ``--jobs 1``) :func:`check_split` runs
+    every check whole instead, which is the same work without the pieces.
+    """
+
+    def __init__(self, ran_on: str = "this process", splits: bool = True):
         self.ran_on = ran_on
+        self.splits = splits
 
     def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
         verdicts: list[Verdict | None] = [None] * len(jobs)
@@ -287,7 +292,7 @@ def make_runner(jobs: int | None = None, cluster: str | None = None):
     if cluster:
         return DaskCluster(cluster)
     jobs = default_jobs() if jobs is None else jobs
-    return LocalProcesses(jobs) if jobs > 1 else InProcess()
+    return LocalProcesses(jobs) if jobs > 1 else InProcess(splits=False)
 
 
 def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
@@ -306,17 +311,24 @@ def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "a
     started = time.perf_counter()
     prop = prop or netlist.claim or DEFAULT_PROPERTY
     check_fits(prop, netlist, source)
+    budget = Budget.of(timeout, progress)  # the time to find the pieces counts too
     if engine == "auto":
         chosen, _, reason = choose_engine(netlist, prop, options)
+        if chosen is None:
+            return check(netlist, prop, engine, timeout, source, options, progress)  # the refusal verdict
     else:
         chosen, reason = get_engine(engine), f"requested with --engine {engine}"
     pieces = None
-    if runner is not None and chosen is not None and hasattr(chosen, "pieces"):
+    if getattr(runner, "splits", runner is not None) and hasattr(chosen, "pieces"):
         pieces = chosen.pieces(netlist, prop, options)
     if not pieces or len(pieces) < 2:
-        verdict = check(netlist, prop, engine, timeout, source, options, progress)
+        isolated = not chosen.cooperative or getattr(chosen, "isolate", False)
+        if budget.deadline is None or not isolated:
+            verdict = chosen.check(netlist, prop, budget, options)
+        else:
+            verdict = check_in_child(chosen, netlist, prop, budget, options)
+        verdict = verdict.with_choice(reason, time.perf_counter() - started)
         return _with_figures(verdict, {"ran_on": "this process", "pieces": 1})
-    budget = Budget.of(timeout, progress)
     return run_pieces(chosen, netlist, prop, pieces, budget, options, runner).with_choice(
         reason, time.perf_counter() - started)
 

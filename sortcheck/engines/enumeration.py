@@ -199,7 +199,7 @@ class EnumerateEngine:
             return None
         space, layout = reduced_layout(netlist, prop, self.reduction)
         kernel = self._compiled_kernel(layout, len(space.suffix))
-        return piece_list(layout, estimated_seconds(layout, len(space.suffix), kernel))
+        return piece_list(layout, estimated_seconds(layout, len(space.suffix), kernel, options.count))
 
     def check_piece(self, netlist: Netlist, prop: Property, piece: dict, budget: Budget,
                     options: Options = Options()) -> Verdict:

@@ -34,13 +34,17 @@ from sortcheck.engines.reduction import MAX_CHANNELS, ReducedSpace, merge_groups
 from sortcheck.model import ComparatorNetwork, Merges, Property
 from sortcheck.model.semantics import violation
 
-#: Estimated evaluation seconds (numpy) below which a check is run whole, in one process.
-SPLIT_SECONDS = 1.0
+#: Estimated evaluation seconds below which a check is run whole, in one process (starting two worker
+#: processes and handing out pieces costs about 0.05 s; below this the gain is lost in the noise).
+SPLIT_SECONDS = 0.5
 #: Estimated seconds of evaluation per piece, and the most pieces of one check.
 PIECE_SECONDS = 0.25
 MAX_PIECES = 256
-#: Word operations per second of the numpy evaluator (as in ``enumeration``) and the compiled kernel's speed-up.
-NUMPY_WORD_OPERATIONS = 1.5e9
+#: Word operations (one comparator on 64 vectors) per second of the numpy evaluator over a whole check,
+#: measured on this project's machine (merge exchange 28 without the reduction, a random 40-channel network
+#: counted: 3e8 to 3.5e8); counting costs about a third more, and compiled kernels are about 10x faster.
+NUMPY_WORD_OPERATIONS = 3e8
+COUNTING_COST = 1.3
 COMPILED_SPEEDUP = 10.0
 
 #: Figures that describe the whole layout, the same in every piece (not summed).
@@ -76,9 +80,14 @@ def reduced_layout(network: ComparatorNetwork, prop: Property, reduction: bool,
     return space, layout
 
 
-def estimated_seconds(layout: Layout, suffix: int, compiled_kernel: bool) -> float:
-    """Seconds the evaluation of ``layout`` through ``suffix`` comparators should take on one core."""
-    seconds = layout.vectors * max(1, suffix) / 64 / NUMPY_WORD_OPERATIONS
+def estimated_seconds(layout: Layout, suffix: int, compiled_kernel: bool, count: bool = False) -> float:
+    """Seconds the whole evaluation of ``layout`` through ``suffix`` comparators should take on one core.
+
+    >>> from sortcheck.engines.reduction import singleton_groups
+    >>> round(estimated_seconds(Layout(ReducedSpace(28, tuple(singleton_groups(28)), (), {}, 2, True)), 160, False), 1)
+    2.2
+    """
+    seconds = layout.vectors * max(1, suffix) / 64 / NUMPY_WORD_OPERATIONS * (COUNTING_COST if count else 1.0)
     return seconds / COMPILED_SPEEDUP if compiled_kernel else seconds
 
 
