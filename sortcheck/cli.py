@@ -34,6 +34,7 @@ from sortcheck.report import (
     stats_report, summarise,
 )
 from sortcheck.report.equivalence_report import equivalence_exit, equivalence_json, format_equivalence
+from sortcheck.report.certify import certify_file_result
 from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line
 from sortcheck.report.sarif import sarif_report
@@ -107,6 +108,10 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--no-minimize", action="store_true",
                        help="report the engine's first counterexample instead of a provably smallest one")
     check.add_argument("--quiet", action="store_true", help="no progress display on standard error")
+    check.add_argument("--certify", metavar="DIR",
+                       help="write each verdict's certificate to DIR (CNFs and DRUP proofs of SAT calls, digests "
+                            "of enumerations, counterexamples) and check it independently; the report says "
+                            "whether each verdict is certified")
     check.add_argument("--jobs", type=_jobs, default=None, metavar="N",
                        help="worker processes: a large check is split into pieces run on N processes, and "
                             "several files are checked N at a time (default: the number of cores)")
@@ -200,10 +205,13 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
 
 
 def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=None,
-                   runner=None) -> FileResult:
-    options = Options(width=request.width, count=count)
-    return check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
-                      minimize, request.words, runner)
+                   certify: str | None = None, runner=None) -> FileResult:
+    options = Options(width=request.width, count=count, certify=certify is not None)
+    result = check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
+                        minimize, request.words, runner)
+    if certify is not None:
+        result = certify_file_result(result, certify, request.words, request.width)
+    return result
 
 
 def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
@@ -212,12 +220,14 @@ def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: T
     if args.jobs > 1 and len(requests) > 1 and not args.cluster:
         with ProcessPoolExecutor(max_workers=min(args.jobs, len(requests))) as pool:
             return list(pool.map(_check_request, requests, [args.count] * len(requests),
-                                 [not args.no_minimize] * len(requests)))
+                                 [not args.no_minimize] * len(requests), [None] * len(requests),
+                                 [args.certify] * len(requests)))
     results = []
     with make_runner(args.jobs, args.cluster) as runner:
         for request in requests:
             progress = progress_line(stderr, request.path, args.quiet)
-            results.append(_check_request(request, args.count, not args.no_minimize, progress, runner))
+            results.append(_check_request(request, args.count, not args.no_minimize, progress, args.certify,
+                                          runner))
             if progress is not None:
                 progress.clear()
     return results

@@ -20,8 +20,8 @@ lemmas follow from clauses that are all implied by the CNF, so this stays
 sound.  Deletions of clauses that are not held are ignored and counted.
 
 >>> result = check_proof("p cnf 2 4\\n1 2 0\\n-1 2 0\\n1 -2 0\\n-1 -2 0\\n", "2 0\\n0\\n")
->>> result.accepted, result.lemmas
-(True, 2)
+>>> result.accepted, result.lemmas  # after the lemma "2", unit propagation alone is contradictory
+(True, 1)
 >>> check_proof("p cnf 2 3\\n1 2 0\\n-1 2 0\\n1 -2 0\\n", "2 0\\n0\\n").accepted
 False
 """

@@ -106,7 +106,23 @@ def format_result(result: FileResult) -> list[str]:
     if verdict.engine_reason:
         lines.append(f"{INDENT}engine: {verdict.engine_reason}")
     lines.append(f"{INDENT}{'covers' if verdict.status.value == 'proved' else 'note'}: {verdict.scope}")
+    if result.certification is not None:
+        lines.append(f"{INDENT}{certification_line(result.certification)}")
     return lines
+
+
+def certification_line(certification: dict) -> str:
+    """How a verdict was certified, in one line.
+
+    >>> certification_line({"certified": True, "certificate": {"method": "drup", "checked_by": ["x"],
+    ...                     "files": ["a", "b"], "scope": "s"}})
+    'certified by drup, checked by x (2 files): s'
+    """
+    certificate = certification["certificate"]
+    if not certification["certified"]:
+        return f"certificate ({certificate['method']}): {certificate['scope']}"
+    return (f"certified by {certificate['method']}, checked by {', '.join(certificate['checked_by'])} "
+            f"({len(certificate['files'])} files): {certificate['scope']}")
 
 
 def format_summary(results: Sequence[FileResult]) -> str:
