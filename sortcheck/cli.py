@@ -20,6 +20,7 @@ from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
 from sortcheck.explain.draw import draw_network, parse_input_values
+from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
 from sortcheck.load import dump_netlist, parse_property, read_netlist, write_netlist
 from sortcheck.load.config import CheckRequest, expand, read_project_config
@@ -35,6 +36,7 @@ from sortcheck.report import (
 )
 from sortcheck.report.equivalence_report import equivalence_exit, equivalence_json, format_equivalence
 from sortcheck.report.certify import certify_file_result
+from sortcheck.report.export import FORMATS as EXPORT_FORMATS, export_text
 from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line
 from sortcheck.report.sarif import sarif_report
@@ -151,10 +153,18 @@ def build_parser() -> argparse.ArgumentParser:
     draw.add_argument("--property", metavar="SPEC", help="property to judge the outputs by (default: the file's)")
     draw.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
 
-    repair = commands.add_parser("repair", help="find the smallest change that makes a network meet its "
-                                 "property, proved by re-checking")
+    export = commands.add_parser("export", help="write the verification condition: a CNF or SMT-LIB 2 script "
+                                 "that is unsatisfiable exactly when the property holds")
+    export.add_argument("path", metavar="PATH")
+    export.add_argument("--to", choices=EXPORT_FORMATS, required=True, help="dimacs (CNF) or smtlib (SMT-LIB 2)")
+    export.add_argument("--property", metavar="SPEC", help="property to state (default: the file's, else sorts)")
+    export.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+
+    repair = commands.add_parser("repair", help="find the smallest change that makes a network (comparators) or "
+                                 "a gate circuit (gate ops) meet its property, proved by re-checking; gate "
+                                 "circuits also get ranked suspect gates")
     repair.add_argument("path", metavar="PATH")
-    repair.add_argument("--output", metavar="FIXED.json", help="write the repaired network here")
+    repair.add_argument("--output", metavar="FIXED.json", help="write the repaired netlist here")
     repair.add_argument("--property", metavar="SPEC")
     repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     repair.add_argument("--format", choices=("text", "json"), default="text")
@@ -358,14 +368,18 @@ def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    network = _network_of(args.path, "repair")
+    network = read_netlist(args.path)
     prop = parse_property(args.property) if args.property else None
     if prop is not None:
         check_fits(prop, network, args.path, where="--property")
-    outcome = repair_network(network, prop, Budget.of(args.timeout))
+    if isinstance(network, GateCircuit):
+        text = Path(args.path).read_text(encoding="utf-8") if args.path.endswith(".json") else None
+        outcome = repair_circuit(network, prop, Budget.of(args.timeout), text=text)
+    else:
+        outcome = repair_network(network, prop, Budget.of(args.timeout))
     if outcome.network is not None and args.output and outcome.status == "repaired":
         write_netlist(outcome.network, args.output)
-    report = {"sortcheck_report": 1, "results": [{"path": args.path, "kind": "comparator-network",
+    report = {"sortcheck_report": 1, "results": [{"path": args.path, "kind": kind_of(network),
                                                   "property": (prop or network.claim or DEFAULT_PROPERTY).to_json(),
                                                   "repair": outcome.to_json()}]}
     stdout.write(dumps(report) if args.format == "json" else format_repair(args.path, outcome, args.output))
@@ -382,8 +396,21 @@ def run_equiv(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     return equivalence_exit(answer)
 
 
+def run_export(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    netlist = read_netlist(args.path)
+    prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
+    check_fits(prop, netlist, args.path, where="--property" if args.property else "property")
+    text = export_text(netlist, prop, args.to, args.path)
+    if args.output:
+        _write(args.output, text)
+        print(f"wrote {args.output}: {args.to} for {prop.describe()}", file=stderr)
+    else:
+        stdout.write(text)
+    return EXIT_PROVED
+
+
 COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build, "draw": run_draw, "repair": run_repair,
-            "equiv": run_equiv}
+            "equiv": run_equiv, "export": run_export}
 
 #: Exit status of ``repair`` by outcome: a verified repair (or nothing to repair) 0, none within the
 #: search 1, budget or undecided 3.

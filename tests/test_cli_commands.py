@@ -65,10 +65,13 @@ def test_repair_writes_a_verified_fix(tmp_path):
         assert evaluate(network.comparators, vector) == sorted(vector)
 
 
-def test_repair_of_a_correct_network_exits_0_and_of_a_gate_circuit_exits_2():
+def test_repair_of_a_correct_network_or_circuit_exits_0_and_a_flipped_gate_is_repaired():
     assert run("repair", CORPUS / "merge-exchange-16.json")[0] == 0
-    status, _, err = run("repair", CORPUS / "compare-and-swap-2x2.json")
-    assert status == 2 and "comparator networks" in err
+    status, out, _ = run("repair", CORPUS / "compare-and-swap-2x2.json")
+    assert status == 0 and "already meets" in out
+    status, out, _ = run("repair", CORPUS / "broken" / "compare-and-swap-2x2-flipped-gate.json", "--format", "json")
+    repair = json.loads(out)["results"][0]["repair"]
+    assert status == 0 and repair["verified"] is True and repair["changes"][0]["gate"] == "low_less"
 
 
 def test_draw_shows_the_counterexample_on_the_wires(tmp_path):

@@ -5,7 +5,8 @@ value that still fails, or the value itself.  :func:`shrink` runs its passes
 in order, again and again, until none makes progress.  "Simpler" is one
 order per kind of value: for 0-1 inputs of a network, fewer ones or fewer
 zeros, whichever side is smaller (:func:`zero_one_measure`); for input words
-of a gate circuit, fewer one bits in all (:func:`word_measure`).
+of a gate circuit, fewer one bits in all (:func:`word_measure`), with the
+passes :data:`WORD_PASSES` on raw bit patterns.
 
 Predicates may take a batch: passes that try many candidates at once call
 ``still_fails.batch(candidates)`` when it exists (bit-parallel evaluation),
@@ -115,3 +116,78 @@ def shrink(value: Vector, still_fails: Predicate, passes: Iterable[Callable[[Vec
 
 #: The passes for 0-1 inputs of comparator networks, in the order they run.
 ZERO_ONE_PASSES = (reduce_smaller_side, move_a_one_right, reduce_smaller_side)
+
+
+# ----------------------------------------------------------------------------- input words of gate circuits
+# Words here are raw bit patterns (non-negative; two's complement for signed values), measured by word_measure.
+
+
+def _first_no_larger(candidates: list[Vector], still_fails: Predicate, bound: int) -> Vector | None:
+    return _first_failing([c for c in dict.fromkeys(candidates) if word_measure(c) <= bound], still_fails)
+
+
+def _repeat(vector: Vector, still_fails: Predicate, candidates_of: Callable[[Vector], list[Vector]]) -> Vector:
+    """Take the first failing candidate of no larger measure, again and again, while the measure goes down."""
+    while True:
+        found = _first_no_larger(candidates_of(vector), still_fails, word_measure(vector) - 1)
+        if found is None:
+            return vector
+        vector = found
+
+
+def clear_a_bit(words: Vector, still_fails: Predicate) -> Vector:
+    """Clear single one bits while the input still fails.
+
+    >>> clear_a_bit((7, 5), lambda w: w[0] & 2 > 0 and w[1] > 0)
+    (2, 4)
+    """
+    return _repeat(words, still_fails, lambda v: [v[:k] + (v[k] & ~(1 << i),) + v[k + 1:]
+                                                   for k in range(len(v)) for i in range(v[k].bit_length())
+                                                   if v[k] >> i & 1])
+
+
+def drop_a_word(words: Vector, still_fails: Predicate) -> Vector:
+    """Set whole words to zero while the input still fails.
+
+    >>> drop_a_word((7, 5, 6), lambda w: w[1] == 5)
+    (0, 5, 0)
+    """
+    return _repeat(words, still_fails, lambda v: [v[:k] + (0,) + v[k + 1:] for k in range(len(v)) if v[k]])
+
+
+def lower_a_value(words: Vector, still_fails: Predicate) -> Vector:
+    """Replace a word by a smaller value of no more one bits (halved, top bit cleared) while it fails.
+
+    >>> lower_a_value((12, 3), lambda w: w[0] > w[1])
+    (1, 0)
+    """
+    def lower(v: Vector) -> list[Vector]:
+        return [v[:k] + (smaller,) + v[k + 1:] for k in range(len(v)) if v[k]
+                for smaller in (v[k] >> 1, v[k] ^ (1 << (v[k].bit_length() - 1)))]
+    vector = words
+    while True:
+        found = _first_no_larger(lower(vector), still_fails, word_measure(vector))
+        if found is None or sum(found) >= sum(vector):
+            return vector
+        vector = found
+
+
+def move_a_bit_down(words: Vector, still_fails: Predicate) -> Vector:
+    """Move a one bit to the clear bit just below it (same measure, a smaller value) while it fails.
+
+    >>> move_a_bit_down((4, 2), lambda w: w[0] > w[1])
+    (2, 1)
+    """
+    def moved(v: Vector) -> list[Vector]:
+        return [v[:k] + (v[k] ^ (3 << (i - 1)),) + v[k + 1:] for k in range(len(v))
+                for i in range(1, v[k].bit_length()) if v[k] >> i & 1 and not v[k] >> (i - 1) & 1]
+    vector = words
+    while True:
+        found = _first_no_larger(moved(vector), still_fails, word_measure(vector))
+        if found is None:
+            return vector
+        vector = found
+
+
+#: The passes for input words of gate circuits, in the order they run.
+WORD_PASSES = (drop_a_word, clear_a_bit, lower_a_value, move_a_bit_down, clear_a_bit)

@@ -138,22 +138,32 @@ def format_text(results: Sequence[FileResult]) -> str:
     return "\n\n".join(blocks + [format_summary(results)]) + "\n"
 
 
+#: Suspect gates the text report of a repair lists (the JSON report has them all).
+TEXT_SUSPECTS = 5
+
+
 def format_repair(path: str, outcome, written: str | None) -> str:
     """The text report of ``sortcheck repair``."""
     headline = {"repaired": "REPAIRED", "holds": "HOLDS", "none": "NO REPAIR", "budget": "UNKNOWN",
                 "unknown": "UNKNOWN"}[outcome.status]
     lines = [f"{headline:<9} {path}"]
+    noun = "circuit" if hasattr(outcome, "suspects") else "network"
     for change in outcome.changes:
         lines.append(f"{INDENT}{change.describe()}")
     if outcome.status == "repaired":
         proof = outcome.verdict
-        lines.append(f"{INDENT}verified: the repaired network was re-checked by {proof.engine}: {proof.scope}")
+        lines.append(f"{INDENT}verified: the repaired {noun} was re-checked by {proof.engine}: {proof.scope}")
         if written:
             lines.append(f"{INDENT}written to {written}")
     elif outcome.status == "holds":
-        lines.append(f"{INDENT}the network already meets the property; nothing to repair")
+        lines.append(f"{INDENT}the {noun} already meets the property; nothing to repair")
     else:
         lines.append(f"{INDENT}{outcome.reason}")
+    suspects = getattr(outcome, "suspects", ())
+    if suspects:
+        lines.append(f"{INDENT}suspect gates, most likely first:")
+        shown = enumerate(suspects[:TEXT_SUSPECTS], 1)
+        lines += [f"{INDENT}  {rank}. {suspect.describe()}" for rank, suspect in shown]
     lines.append(f"{INDENT}{outcome.candidates_tried:,} candidates tried, {outcome.verifications} full checks, "
                  f"{outcome.seconds:.2f} s; searched {outcome.searched}")
     return "\n".join(lines) + "\n"

@@ -1,0 +1,379 @@
+"""Repair a gate circuit by changing the ops of the fewest gates, every repair proved; rank suspect gates.
+
+The search works on *copies*: the circuit on concrete inputs, some it gets
+wrong (the first counterexample and failing inputs found by simulation of
+seeded random inputs and of the counterexample's one-bit neighbours), some
+it gets right.  :class:`~sortcheck.explain.gate_repair_cnf.RepairCnf` gives
+every gate in the fan-in of a wrong output bit a selector ("replaced") and a
+truth table; the hard clauses say every copy meets the property.  A
+cardinality constraint (a totalizer over the selectors) bounds the number of
+replaced gates, and the bound is raised from 1 until the clauses are
+satisfiable: the first satisfiable bound is the least number of gates to
+change, the optimum of the MaxSAT problem whose soft clauses are "gate g is
+kept" (solved this way rather than with a core-guided MaxSAT solver because
+glucose can be interrupted, so the time budget holds).
+
+CEGAR: a model asking only ops of the format (same inputs, another op) is
+turned into a changed circuit and checked on every input with
+:func:`sortcheck.engines.check`; a counterexample becomes a new copy and the
+solver runs again.  Only a circuit the check *proves* is offered, with
+``verified`` true.  Since every copy is a real input, "no model" means no
+change of at most that many ops repairs the circuit at all.
+
+Suspects rank single gates, whether or not an op change repairs the circuit:
+first the gates whose op can change so that every copy is right, then those
+for which some Boolean function of the gate's inputs makes every copy right,
+then by how many failing copies flipping the gate's value alone would fix,
+then by the distance (in gates) to the nearest wrong output bit.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, field, replace
+from typing import Any, Sequence
+
+import networkx as nx
+from pysat.card import ITotalizer
+from pysat.solvers import Solver
+
+from sortcheck.engines import Budget, Status, StopReason, Verdict, check
+from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
+from sortcheck.explain.gate_flips import expected_raw, flip_counts, wrong_bits
+from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw
+from sortcheck.explain.gate_repair_cnf import RepairCnf
+from sortcheck.load.locate import line_of
+from sortcheck.model import DEFAULT_PROPERTY, GateCircuit, Property, check_fits
+
+
+@dataclass(frozen=True)
+class GateChange:
+    """One gate of the circuit takes another op (same output, same inputs).
+
+    >>> GateChange("c3_lo1", 12, "or", "and", 20).describe()
+    "change gate 'c3_lo1' (gates[12], line 20) from and to or"
+    """
+
+    gate: str
+    index: int
+    op: str
+    replaced: str
+    line: int | None = None
+    kind = "op"
+
+    def describe(self) -> str:
+        where = f"gates[{self.index}]" + ("" if self.line is None else f", line {self.line}")
+        return f"change gate {self.gate!r} ({where}) from {self.replaced} to {self.op}"
+
+    def to_json(self) -> dict[str, Any]:
+        return {"kind": self.kind, "gate": self.gate, "index": self.index, "op": self.op,
+                "replaced": self.replaced, "line": self.line}
+
+
+@dataclass(frozen=True)
+class Suspect:
+    """A gate that may be at fault, with the evidence for it.
+
+    ``ops`` lists the other ops that make every copy right when this gate
+    alone takes them; ``function`` says some Boolean function of the gate's
+    inputs does; ``explains`` counts the failing copies that flipping the
+    gate's value alone would fix (None when not computed); ``distance`` is
+    the fewest gates from it to a wrong output bit.
+    """
+
+    gate: str
+    index: int
+    op: str
+    line: int | None
+    ops: tuple[str, ...]
+    function: bool
+    explains: int | None
+    distance: int | None
+
+    def rank_key(self) -> tuple:
+        return (not self.ops, not self.function, -(self.explains or 0),
+                self.distance if self.distance is not None else 1 << 30, self.index)
+
+    def describe(self) -> str:
+        where = f"gates[{self.index}]" + ("" if self.line is None else f", line {self.line}")
+        if self.ops:
+            evidence = f"as {' or '.join(self.ops)} it gets every tried input right"
+        elif self.function:
+            evidence = "some function of its inputs gets every tried input right (no single op does)"
+        else:
+            evidence = "no change of this gate alone gets every tried input right"
+        if self.explains is not None:
+            evidence += f"; flipping it fixes {self.explains} failing input(s)"
+        if self.distance is not None:
+            evidence += f"; {self.distance} gate(s) from a wrong output bit"
+        return f"{self.gate!r} ({self.op}, {where}): {evidence}"
+
+    def to_json(self) -> dict[str, Any]:
+        return {"gate": self.gate, "index": self.index, "op": self.op, "line": self.line, "ops": list(self.ops),
+                "function": self.function, "explains": self.explains, "distance": self.distance}
+
+
+@dataclass(frozen=True)
+class GateRepairOptions:
+    """Tuning of the search; none of it changes whether a verified repair is correct.
+
+    ``failing`` and ``passing`` are the initial copies of each kind, chosen
+    among ``samples`` seeded random inputs (and the counterexample's one-bit
+    neighbours); ``max_rounds`` bounds the CEGAR rounds; ``suspects`` how many
+    are reported; ``flip_evaluations`` bounds the gate evaluations spent on
+    the flip counts.
+    """
+
+    failing: int = 12
+    passing: int = 12
+    samples: int = 4096
+    max_rounds: int = 200
+    suspects: int = 10
+    flip_evaluations: int = 2_000_000
+    seed: int = 0
+    engine: str = "auto"
+
+
+@dataclass(frozen=True)
+class GateRepairOutcome:
+    """What :func:`repair_circuit` found; the fields of the network repair's outcome, plus suspects."""
+
+    status: str
+    changes: tuple[GateChange, ...]
+    network: GateCircuit | None
+    verified: bool
+    candidates_tried: int
+    verifications: int
+    seconds: float
+    reason: str
+    searched: str
+    bank_inputs: int = 0
+    counterexamples_added: int = 0
+    undecided: int = 0
+    suspects: tuple[Suspect, ...] = ()
+    verdict: Verdict | None = field(default=None, compare=False)
+
+    def to_json(self) -> dict[str, Any]:
+        proof = self.verdict if self.verified else None
+        return {"status": self.status, "changes": [change.to_json() for change in self.changes],
+                "verified": self.verified, "reason": self.reason, "searched": self.searched,
+                "engine": None if proof is None else proof.engine,
+                "scope": None if proof is None else proof.scope,
+                "stats": None if self.network is None else self.network.stats(),
+                "candidates_tried": self.candidates_tried, "verifications": self.verifications,
+                "bank_inputs": self.bank_inputs, "counterexamples_added": self.counterexamples_added,
+                "undecided": self.undecided, "seconds": round(self.seconds, 3),
+                "suspects": [suspect.to_json() for suspect in self.suspects]}
+
+
+def change_ops(circuit: GateCircuit, ops: dict[str, str]) -> GateCircuit:
+    """The circuit with the gates named in ``ops`` taking the ops given (name, description and claim kept).
+
+    >>> from sortcheck.model import Gate, OutputWord, Word
+    >>> circuit = GateCircuit((Word("a", 1),), (Gate("y", "not", ("a[0]",)),), (OutputWord("o", ("y",)),))
+    >>> change_ops(circuit, {"y": "and"}).gates
+    (Gate(out='y', op='and', inputs=('a[0]',)),)
+    """
+    gates = tuple(replace(gate, op=ops[gate.out]) if gate.out in ops else gate for gate in circuit.gates)
+    return replace(circuit, gates=gates)
+
+
+class _Search:
+    """The copies, the incremental solver and the bound on replaced gates."""
+
+    def __init__(self, circuit: GateCircuit, prop: Property, candidates: Sequence[str], max_changes: int):
+        self.cnf = RepairCnf(circuit, prop, candidates)
+        self.solver = Solver(name=INTERRUPTIBLE_SOLVER)
+        self.fed = 0
+        selectors = list(self.cnf.selectors.values())
+        self.bound: list[int] = []
+        if selectors:
+            pool = self.cnf.builder.pool
+            totalizer = ITotalizer(lits=selectors, ubound=max(1, max_changes), top_id=pool.top)
+            pool.top = totalizer.top_id
+            self.cnf.builder.clauses.extend(totalizer.cnf.clauses)
+            self.bound = list(totalizer.rhs)
+
+    def at_most(self, count: int) -> list[int]:
+        """The assumption that at most ``count`` gates are replaced."""
+        return [-self.bound[count]] if count < len(self.bound) else []
+
+    def add(self, raw: Sequence[int]) -> None:
+        self.cnf.add_copy(raw)
+
+    def feed(self) -> None:
+        clauses = self.cnf.builder.clauses
+        self.solver.append_formula(clauses[self.fed:])
+        self.fed = len(clauses)
+
+    def solve(self, assumptions: Sequence[int], budget: Budget) -> bool | None:
+        self.feed()
+        return solve_in_budget(self.solver, assumptions, budget)
+
+    def close(self) -> None:
+        self.solver.delete()
+
+
+def _bank(circuit: GateCircuit, prop: Property, first: tuple[int, ...], failures: CircuitFailures,
+          options: GateRepairOptions) -> tuple[list[tuple[int, ...]], list[tuple[int, ...]]]:
+    """Failing copies (the counterexample first) and passing copies, from neighbours and random inputs."""
+    neighbours = [first[:k] + (first[k] ^ (1 << i),) + first[k + 1:]
+                  for k in range(circuit.words) for i in range(circuit.width)]
+    pool = list(dict.fromkeys(neighbours + random_raw_inputs(circuit.words, circuit.width, options.samples,
+                                                              options.seed)))
+    flags = failures.failing(pool)
+    failing = [first] + [raw for raw, bad in zip(pool, flags) if bad and raw != first][:options.failing - 1]
+    passing = [raw for raw, bad in zip(pool, flags) if not bad][:options.passing]
+    return failing, passing
+
+
+def _candidates(circuit: GateCircuit, wrong: set[str]) -> list[str]:
+    """Gates in the fan-in of the wrong output bits, in file order."""
+    cone = set(wrong)
+    for bit in wrong:
+        cone |= nx.ancestors(circuit.graph, bit)
+    return [gate.out for gate in circuit.gates if gate.out in cone]
+
+
+def _distances(circuit: GateCircuit, wrong: set[str]) -> dict[str, int]:
+    if not wrong:
+        return {}
+    return dict(nx.multi_source_dijkstra_path_length(circuit.graph.reverse(copy=False), wrong))
+
+
+def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Budget = Budget(),
+                   max_changes: int = 1, options: GateRepairOptions = GateRepairOptions(),
+                   text: str | None = None) -> GateRepairOutcome:
+    """Change the ops of the fewest gates (at most ``max_changes``) so that ``circuit`` has ``prop``, proved.
+
+    ``text`` is the circuit's file text, used to give the line of each gate.
+    Statuses as for networks: ``repaired``, ``holds``, ``none``, ``budget``,
+    ``unknown``; suspects are ranked in every case but ``holds``.
+
+    Examples
+    --------
+    >>> from sortcheck.model import Gate, OutputWord, Sorts, Word
+    >>> swapped = GateCircuit((Word("a", 1), Word("b", 1)),
+    ...     (Gate("lo", "or", ("a[0]", "b[0]")), Gate("hi", "or", ("a[0]", "b[0]"))),
+    ...     (OutputWord("y0", ("lo",)), OutputWord("y1", ("hi",))))
+    >>> outcome = repair_circuit(swapped, Sorts())
+    >>> outcome.status, [change.describe() for change in outcome.changes], outcome.verified
+    ('repaired', ["change gate 'lo' (gates[0]) from or to and"], True)
+    >>> outcome.suspects[0].gate, outcome.suspects[0].ops
+    ('lo', ('and',))
+    """
+    started = time.perf_counter()
+    prop = prop or circuit.claim or DEFAULT_PROPERTY
+    check_fits(prop, circuit, None)
+    index = {gate.out: position for position, gate in enumerate(circuit.gates)}
+    lines = {name: line_of(text, f"gates[{position}]") if text else None for name, position in index.items()}
+    counts = {"tried": 0, "verifications": 0, "added": 0, "undecided": 0}
+    bank_size = 0
+
+    def outcome(status, reason, searched="", changes=(), fixed=None, verdict=None, suspects=()):
+        verified = verdict is not None and verdict.status == Status.PROVED
+        return GateRepairOutcome(status, tuple(changes), fixed, verified, counts["tried"], counts["verifications"],
+                                 time.perf_counter() - started, reason, searched, bank_size, counts["added"],
+                                 counts["undecided"], tuple(suspects), verdict)
+
+    first = check(circuit, prop, engine=options.engine, timeout=budget.remaining())
+    counts["verifications"] += 1
+    if first.status == Status.PROVED:
+        return outcome("holds", f"the circuit already {prop.describe()}; nothing to repair", "nothing",
+                       fixed=circuit, verdict=first)
+    if first.status == Status.UNKNOWN:
+        status = "budget" if first.stop == StopReason.TIMEOUT else "unknown"
+        return outcome(status, f"the circuit itself could not be checked: {first.scope}")
+    width = circuit.width
+    failures = CircuitFailures(circuit, prop)
+    failing, passing = _bank(circuit, prop, to_raw(first.counterexample.input, width), failures, options)
+    wrong = wrong_bits(circuit, prop, failing)
+    candidates = _candidates(circuit, wrong)
+    searched = (f"op changes of at most {max_changes} of the {len(candidates)} gates in the fan-in of the wrong "
+                f"output bits (of {len(circuit.gates)} gates)")
+    search = _Search(circuit, prop, candidates, max_changes)
+    try:
+        for raw in failing + passing:
+            search.add(raw)
+        initial = len(failing) + len(passing)
+        found = _cegar(circuit, prop, search, budget, max_changes, options, counts, index, lines)
+        bank_size = len(search.cnf.copies)
+        suspects = _suspects(circuit, prop, search, failing + search.cnf.copies[initial:], wrong, budget,
+                             options, index, lines)
+    finally:
+        search.close()
+    status, changes, fixed, verdict = found
+    if status == "repaired":
+        done = len(changes)
+        return outcome("repaired", f"changing the op of {done} gate{'s' * (done > 1)} makes the circuit "
+                       f"{prop.describe()}, proved by {verdict.engine}", searched, changes, fixed, verdict, suspects)
+    if status == "budget":
+        return outcome("budget", "the time budget ran out while searching op changes", searched, suspects=suspects)
+    if counts["undecided"]:
+        return outcome("unknown", f"no op change of at most {max_changes} gate(s) was proved, and "
+                       f"{counts['undecided']} could not be decided", searched, suspects=suspects)
+    return outcome("none", f"no op change of at most {max_changes} gate(s) makes the circuit {prop.describe()}: "
+                   f"none gets all {bank_size} tried inputs right", searched, suspects=suspects)
+
+
+def _cegar(circuit: GateCircuit, prop: Property, search: _Search, budget: Budget, max_changes: int,
+           options: GateRepairOptions, counts: dict, index: dict, lines: dict):
+    """Candidate op changes from the solver, checked on every input; counterexamples become copies."""
+    cnf = search.cnf
+    for _ in range(options.max_rounds):
+        answer = False
+        for bound in range(1, max_changes + 1):
+            answer = search.solve([cnf.ops_only, *search.at_most(bound)], budget)
+            if answer is not False:
+                break
+        if answer is None:
+            return "budget", (), None, None
+        if not answer:
+            return "none", (), None, None
+        chosen = cnf.chosen_ops(search.solver.get_model())
+        changes = tuple(GateChange(name, index[name], op, cnf.gates[name].op, lines[name])
+                        for name, op in sorted(chosen.items(), key=lambda item: index[item[0]]))
+        fixed = change_ops(circuit, {change.gate: change.op for change in changes})
+        counts["tried"] += 1
+        verdict = check(fixed, prop, engine=options.engine, timeout=budget.remaining())
+        counts["verifications"] += 1
+        if verdict.status == Status.PROVED:
+            return "repaired", changes, fixed, verdict
+        if verdict.status == Status.REFUTED:
+            search.add(to_raw(verdict.counterexample.input, circuit.width))
+            counts["added"] += 1
+        elif verdict.stop == StopReason.TIMEOUT:
+            return "budget", (), None, None
+        else:
+            counts["undecided"] += 1
+            cnf.builder.clauses.append([-cnf.choices[name][op] for name, op in chosen.items()])
+    return "budget", (), None, None
+
+
+def _suspects(circuit: GateCircuit, prop: Property, search: _Search, failing: list[tuple[int, ...]],
+              wrong: set[str], budget: Budget, options: GateRepairOptions, index: dict, lines: dict
+              ) -> list[Suspect]:
+    """Every candidate gate judged alone on all copies, ranked (see the module docstring)."""
+    cnf = search.cnf
+    one = search.at_most(1)
+    distances = _distances(circuit, wrong)
+    flips = flip_counts(circuit, prop, failing, list(cnf.gates), options.flip_evaluations)
+    found = []
+    for name, selector in cnf.selectors.items():
+        function = search.solve([selector, *one], budget) if not budget.expired() else None
+        ops: list[str] = []
+        if function:
+            blocked: list[int] = []
+            while search.solve([selector, cnf.ops_only, *one, *blocked], budget):
+                op = cnf.chosen_ops(search.solver.get_model())[name]
+                ops.append(op)
+                blocked.append(-cnf.choices[name][op])
+        gate = cnf.gates[name]
+        found.append(Suspect(name, index[name], gate.op, lines[name], tuple(sorted(ops)), bool(function),
+                             flips.get(name), distances.get(name)))
+    found.sort(key=Suspect.rank_key)
+    return found[:options.suspects]
+
+
+__all__ = ["GateChange", "GateRepairOptions", "GateRepairOutcome", "Suspect", "change_ops", "expected_raw",
+           "repair_circuit"]
