@@ -1,0 +1,288 @@
+"""The ``sat`` engine for gate circuits: simulation first, then threshold decomposition and SAT.
+
+A check runs in two steps, each sound on its own:
+
+1. **Simulation** (:func:`~sortcheck.engines.gate_simulation.quick_refute`):
+   corner cases and seeded random inputs, bit-parallel; most broken circuits
+   are refuted here in milliseconds.
+2. **Threshold SAT** (:mod:`sortcheck.engines.gate_spec`): the circuit is
+   encoded once, with a threshold word ``v`` and the violation "at threshold
+   ``v`` the 0-1 vectors the property relates differ".  Narrow words
+   (at most :data:`PER_THRESHOLD_WIDTH` bits) are asked one threshold at a
+   time, by assumptions on ``v``'s bits in one incremental solver that keeps
+   its learnt clauses; wider words in one call with ``v`` free.  Stable
+   partial sorts are one miter call against a stable reference sorter.
+
+The solver is glucose 4 (python-sat can interrupt it, so the deadline holds
+inside a call).  Building the CNF of a large circuit cannot be interrupted,
+so with a deadline the check runs in a process that can be ended
+(``isolate``).  Every refutation is decoded to input words, recomputed with
+the circuit and re-checked against :func:`sortcheck.model.semantics.violation`.
+
+The check splits into *pieces*, ranges of thresholds in increasing order
+(:meth:`GateSatEngine.pieces`), that :meth:`GateSatEngine.check_piece` checks
+one at a time; together they cover what :meth:`GateSatEngine.check` covers.
+
+>>> from sortcheck.model import Sorts
+>>> from sortcheck.model.counting import counting_sorter
+>>> verdict = GateSatEngine().check(counting_sorter(4, 2), Sorts(), Budget())
+>>> verdict.status.value, verdict.figures["method"], verdict.figures["thresholds_asked"]
+('proved', 'threshold-sat', 4)
+"""
+
+from __future__ import annotations
+
+import threading
+import time
+from dataclasses import dataclass
+
+from pysat.solvers import Solver
+
+from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict, refused_verdict
+from sortcheck.engines.gate_simulation import SEED, counterexample_of, quick_refute
+from sortcheck.engines.gate_spec import ThresholdQuestion, refusal_of, threshold_question
+from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
+from sortcheck.errors import PropertyError
+from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
+
+#: Words of at most this many bits are asked one threshold at a time; wider ones with the threshold free.
+PER_THRESHOLD_WIDTH = 4
+
+#: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
+PIECES = 4
+
+#: Random inputs simulated before any SAT call.
+SIMULATION_SAMPLES = 1 << 14
+
+
+@dataclass
+class _Tally:
+    """Figures gathered over one check."""
+
+    sat_calls: int = 0
+    thresholds_proved: int = 0
+    solver_seconds: float = 0.0
+    simulated: bool = False
+
+
+def _solve(solver: Solver, assumptions: list[int], budget: Budget) -> bool | None:
+    """The solver's answer under ``assumptions``; None when the deadline passed first."""
+    remaining = budget.remaining()
+    if remaining is None:
+        return solver.solve(assumptions=assumptions)
+    if remaining <= 0:
+        return None
+    timer = threading.Timer(remaining, solver.interrupt)
+    timer.start()
+    try:
+        answer = solver.solve_limited(assumptions=assumptions, expect_interrupt=True)
+    finally:
+        timer.cancel()
+    solver.clear_interrupt()
+    return answer
+
+
+def _domain(prop: Property) -> str:
+    return "two's complement" if prop.signed else "unsigned"
+
+
+class GateSatEngine:
+    """Simulation, then threshold SAT (glucose 4), for gate circuits and every property.
+
+    Parameters
+    ----------
+    solver : str
+        python-sat solver name; only interruptible ones (glucose, minisat)
+        keep deadlines inside a call.
+    per_threshold_width : int
+        Words of at most this many bits are asked one threshold at a time.
+    samples : int
+        Random inputs simulated first (0: no simulation).
+    """
+
+    name = "sat"
+    cooperative = True
+    #: Building the CNF of a large circuit cannot be interrupted: with a deadline, run in a killable process.
+    isolate = True
+
+    def __init__(self, solver: str = INTERRUPTIBLE_SOLVER, per_threshold_width: int = PER_THRESHOLD_WIDTH,
+                 samples: int = SIMULATION_SAMPLES, seed: int = SEED):
+        self.solver, self.per_threshold_width, self.samples, self.seed = solver, per_threshold_width, samples, seed
+
+    def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
+                ) -> tuple[StopReason, str] | None:
+        if not isinstance(netlist, GateCircuit):
+            return StopReason.UNSUPPORTED, "this sat engine checks gate circuits (comparator networks have their own)"
+        try:
+            check_fits(prop, netlist, None)
+        except PropertyError as error:
+            return StopReason.UNSUPPORTED, error.message
+        refused = refusal_of(netlist, prop)
+        return None if refused is None else (StopReason.UNSUPPORTED, refused)
+
+    # -- whole checks -----------------------------------------------------------------------------------------
+
+    def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
+        started = time.perf_counter()
+        refused = refused_verdict(self, netlist, prop, options, started)
+        if refused is not None:
+            return refused
+        circuit: GateCircuit = netlist  # type: ignore[assignment]
+        tally = _Tally(simulated=self.samples > 0)
+        if self.samples:
+            found = quick_refute(circuit, prop, budget, self.samples, self.seed)
+            if found is not None:
+                figures = {"method": "simulation", "simulated": self.samples, "seed": self.seed,
+                           "seconds": time.perf_counter() - started}
+                scope = (f"this input of {circuit.words} words of {circuit.width} bits breaks the property (found by "
+                         f"simulating corner cases and random inputs with seed {self.seed})")
+                return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope,
+                               figures["seconds"], found, figures)
+        if budget.expired():
+            return self._unknown(circuit, prop, None, [], 0, tally, started)
+        question = threshold_question(circuit, prop)
+        return self._run(circuit, prop, question, None, budget, tally, started)
+
+    # -- pieces -----------------------------------------------------------------------------------------------
+
+    def pieces(self, netlist: Netlist, prop: Property, options: Options = Options()) -> list[dict] | None:
+        """Threshold ranges in increasing order, ``{"kind": "thresholds", "low": a, "high": b}`` (inclusive).
+
+        None when the check does not split (a refused check, or a stable
+        partial sort, which is one miter).
+
+        >>> from sortcheck.model import Sorts
+        >>> from sortcheck.model.counting import counting_sorter
+        >>> GateSatEngine().pieces(counting_sorter(3, 3, signed=True), Sorts(signed=True))[:2]
+        [{'kind': 'thresholds', 'low': -4, 'high': -3}, {'kind': 'thresholds', 'low': -2, 'high': -1}]
+        """
+        if self.refusal(netlist, prop, options) is not None or (isinstance(prop, PartialSort) and prop.stable):
+            return None
+        width = netlist.width  # type: ignore[union-attr]
+        low = -(1 << (width - 1)) if prop.signed else 0
+        total = 1 << width
+        count = min(PIECES, total)
+        bounds = [low + total * i // count for i in range(count + 1)]
+        return [{"kind": "thresholds", "low": bounds[i], "high": bounds[i + 1] - 1} for i in range(count)]
+
+    def check_piece(self, netlist: Netlist, prop: Property, piece: dict, budget: Budget,
+                    options: Options = Options()) -> Verdict:
+        """Threshold SAT on the thresholds ``piece["low"] .. piece["high"]`` only (no simulation)."""
+        started = time.perf_counter()
+        refused = refused_verdict(self, netlist, prop, options, started)
+        if refused is not None:
+            return refused
+        circuit: GateCircuit = netlist  # type: ignore[assignment]
+        if piece.get("kind") != "thresholds":
+            raise ValueError(f"not a piece of this engine: {piece!r}")
+        question = threshold_question(circuit, prop)
+        if question.method != "threshold":
+            raise ValueError("a stable partial sort does not split into pieces")
+        lowest, highest = question.threshold_range()
+        low, high = int(piece["low"]), int(piece["high"])
+        if not lowest <= low <= high <= highest:
+            raise ValueError(f"threshold range {low}..{high} is not inside {lowest}..{highest}")
+        return self._run(circuit, prop, question, (low, high), budget, _Tally(), started)
+
+    # -- solving ----------------------------------------------------------------------------------------------
+
+    def _questions(self, question: ThresholdQuestion, span: tuple[int, int] | None
+                   ) -> tuple[list[tuple[tuple[int, int], list[int]]], str]:
+        """The SAT calls to make: (threshold range, assumptions) each, and the mode's name."""
+        if question.method == "miter":
+            return [((0, 0), [])], "miter"
+        whole = question.threshold_range()
+        low, high = whole if span is None else span
+        if question.width <= self.per_threshold_width:
+            return [((v, v), question.threshold_literals(v)) for v in range(low, high + 1)], "per-threshold"
+        assumptions = [] if (low, high) == whole else [question.within(low, high)]
+        return [((low, high), assumptions)], "symbolic"
+
+    def _run(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion, span: tuple[int, int] | None,
+             budget: Budget, tally: _Tally, started: float) -> Verdict:
+        calls, mode = self._questions(question, span)
+        clauses = question.clauses()
+        figures = self._figures(question, clauses, mode, tally)
+        done: list[tuple[int, int]] = []
+        with Solver(name=self.solver, bootstrap_with=clauses) as solver:
+            for number, (values, assumptions) in enumerate(calls):
+                budget.report(number, len(calls), "threshold SAT")
+                began = time.perf_counter()
+                answer = _solve(solver, assumptions, budget)
+                tally.solver_seconds += time.perf_counter() - began
+                tally.sat_calls += 1
+                if answer is None:
+                    return self._unknown(circuit, prop, question, done, len(calls), tally, started, figures)
+                if answer:
+                    return self._refuted(circuit, prop, question, solver.get_model(), tally, started, figures)
+                done.append(values)
+                tally.thresholds_proved += values[1] - values[0] + 1
+        return self._proved(circuit, prop, question, span, mode, tally, started, figures)
+
+    # -- verdicts ---------------------------------------------------------------------------------------------
+
+    def _figures(self, question: ThresholdQuestion, clauses: list, mode: str, tally: _Tally) -> dict:
+        asked, encoded = question.circuit_nodes
+        return {"method": "miter-sat" if question.method == "miter" else "threshold-sat", "mode": mode,
+                "solver": self.solver, "thresholds": question.thresholds if question.threshold else 0,
+                "clauses": len(clauses), "variables": question.builder.pool.top,
+                "circuit_nodes": encoded, "nodes_hashed_away": asked - encoded,
+                "all_nodes_hashed_away": question.builder.asked - question.builder.encoded}
+
+    def _finish(self, figures: dict, tally: _Tally, started: float) -> dict:
+        figures.update(sat_calls=tally.sat_calls, thresholds_asked=tally.sat_calls,
+                       thresholds_proved=tally.thresholds_proved, solver_seconds=round(tally.solver_seconds, 4),
+                       simulated=self.samples if tally.simulated else 0, seconds=time.perf_counter() - started)
+        return figures
+
+    def _inputs_text(self, circuit: GateCircuit, prop: Property) -> str:
+        text = f"every input of {circuit.words} words of {circuit.width} bits ({_domain(prop)})"
+        if isinstance(prop, Merges):
+            text += (f" whose words 0..{prop.split - 1} and {prop.split}..{circuit.words - 1} each ascend "
+                     f"(the others are outside the property)")
+        return text
+
+    def _proved(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion,
+                span: tuple[int, int] | None, mode: str, tally: _Tally, started: float, figures: dict) -> Verdict:
+        figures = self._finish(figures, tally, started)
+        inputs = self._inputs_text(circuit, prop)
+        if question.method == "miter":
+            scope = (f"{inputs} is covered: a SAT miter ({self.solver}) proved the outputs equal, bit for bit, those "
+                     f"of a stable reference sorter by the {prop.key_bits} most significant bits (odd-even "
+                     f"transposition swapping only on a strictly greater key), so {prop.describe()} holds")
+            return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None, figures)
+        how = (f"{tally.sat_calls} SAT calls, one per threshold, in one incremental solver" if mode == "per-threshold"
+               else "one SAT call with the threshold free")
+        if span is None:
+            scope = (f"{inputs} is covered: threshold SAT proved {prop.describe()} for all 2^{circuit.width} = "
+                     f"{question.thresholds:,} thresholds ({how}, {self.solver})")
+            return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None, figures)
+        scope = (f"only thresholds {span[0]}..{span[1]} of all 2^{circuit.width} are covered, for {inputs}: threshold "
+                 f"SAT proved {prop.describe()} there ({how}, {self.solver}); the property needs every threshold")
+        return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None, figures)
+
+    def _refuted(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion, model: list[int],
+                 tally: _Tally, started: float, figures: dict) -> Verdict:
+        words, threshold = question.decode(model)
+        found = counterexample_of(circuit, prop, words)
+        figures = self._finish(figures, tally, started)
+        where = "a miter against a stable reference sorter" if threshold is None else f"threshold v = {threshold}"
+        scope = (f"this input of {circuit.words} words of {circuit.width} bits breaks the property (found by SAT at "
+                 f"{where}, {self.solver})")
+        return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope, figures["seconds"], found,
+                       figures)
+
+    def _unknown(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion | None,
+                 done: list[tuple[int, int]], calls: int, tally: _Tally, started: float,
+                 figures: dict | None = None) -> Verdict:
+        figures = self._finish(figures if figures is not None else {"method": "threshold-sat"}, tally, started)
+        simulated = (f"{self.samples:,} simulated inputs found no failure; " if tally.simulated else "")
+        if question is None or not done:
+            covered = "no SAT call finished"
+        elif question.method == "miter":
+            covered = "the miter call did not finish"
+        else:
+            covered = (f"{tally.thresholds_proved:,} of the {question.thresholds:,} thresholds were proved "
+                       f"({done[0][0]}..{done[-1][1]}) and the others were not")
+        scope = f"the time budget ran out: {simulated}{covered}; nothing is proved for the circuit"
+        return Verdict(Status.UNKNOWN, self.name, prop, StopReason.TIMEOUT, scope, figures["seconds"], None, figures)
