@@ -1,0 +1,76 @@
+"""Verification conditions for other tools: a CNF or an SMT-LIB 2 script that is unsatisfiable exactly when
+the property holds, with comments that map variables back to channels (or words and bits).
+
+* comparator networks, DIMACS: the plain Tseitin encoding of the network and
+  the property's 0-1 violation condition
+  (:func:`sortcheck.engines.network_cnf.annotated_dimacs`); by the 0-1
+  principle it is unsatisfiable exactly when the property holds for every
+  input of any values;
+* comparator networks, SMT-LIB 2: the ``smt`` engine's bit-vector formula
+  (:func:`sortcheck.engines.smt.smtlib_text`) at the smallest width that
+  holds a distinct value per channel, which covers inputs of any values;
+* gate circuits, DIMACS: the CNF of :mod:`sortcheck.engines.gate_spec`, when
+  that module is present.
+
+>>> from sortcheck.model import ComparatorNetwork, Sorts
+>>> text = export_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "smtlib")
+>>> text.splitlines()[0]
+'; sortcheck SMT-LIB 2 script: unsat exactly when the netlist meets: sorts ascending'
+"""
+
+from __future__ import annotations
+
+from sortcheck.engines.network_cnf import annotated_dimacs, dimacs
+from sortcheck.engines.smt import default_width, smtlib_text
+from sortcheck.errors import UsageError
+from sortcheck.model import ComparatorNetwork, Netlist, PartialSort, Property
+
+FORMATS = ("dimacs", "smtlib")
+
+
+def export_text(netlist: Netlist, prop: Property, to: str, source: str | None = None) -> str:
+    """The verification condition of ``netlist`` and ``prop`` in format ``to`` (``dimacs`` or ``smtlib``).
+
+    Raises
+    ------
+    UsageError
+        For a combination that cannot be exported (the message says why).
+    """
+    if to not in FORMATS:
+        raise UsageError(f"unknown export format {to!r} (one of {', '.join(FORMATS)})", "--to")
+    if isinstance(netlist, ComparatorNetwork):
+        if isinstance(prop, PartialSort):
+            raise UsageError("partial-sort applies to gate circuits only", source, "--property")
+        return _network_dimacs(netlist, prop) if to == "dimacs" else _network_smtlib(netlist, prop)
+    if to == "dimacs":
+        return _circuit_dimacs(netlist, prop, source)
+    raise UsageError("SMT-LIB export of gate circuits is not available yet: export it as DIMACS (--to dimacs) "
+                     "or check it with sortcheck check", source)
+
+
+def _network_dimacs(network: ComparatorNetwork, prop: Property) -> str:
+    text = annotated_dimacs(network, prop)
+    header = (f"c unsatisfiable exactly when the network meets: {prop.describe()} (for inputs of any values, "
+              f"by the 0-1 principle); a model's input variables give a failing 0-1 input\n")
+    return header + text
+
+
+def _network_smtlib(network: ComparatorNetwork, prop: Property) -> str:
+    width = default_width(network.channels)
+    kind = "two's complement" if prop.signed else "unsigned"
+    lines = [f"; sortcheck SMT-LIB 2 script: unsat exactly when the netlist meets: {prop.describe()}",
+             f"; {network.channels} channels, {network.size} comparators; x<c> is the input word on channel c "
+             f"({width}-bit {kind}); {width} bits hold a distinct value per channel, so unsat covers inputs of "
+             f"any values",
+             "; sat: the model's x<c> are a failing input"]
+    return "\n".join(lines) + "\n" + smtlib_text(network, prop, width)
+
+
+def _circuit_dimacs(circuit: Netlist, prop: Property, source: str | None) -> str:
+    try:
+        from sortcheck.engines.gate_spec import gate_violation_cnf
+    except ImportError:
+        raise UsageError("DIMACS export of gate circuits is not available in this version (it needs the gate "
+                         "circuit CNF of sortcheck.engines.gate_spec)", source) from None
+    clauses, pool, comments = gate_violation_cnf(circuit, prop)
+    return dimacs(clauses, pool, [*comments, "unsatisfiable exactly when the circuit meets: " + prop.describe()])
