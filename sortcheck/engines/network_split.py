@@ -89,29 +89,47 @@ def join_delayed_order(network: ComparatorNetwork) -> list[int]:
         return all(head[c] < len(on_channel[c]) and on_channel[c][head[c]] == index for c in comparators[index])
 
     inside: list[int] = []
-    joins: list[int] = []
+    joins: list[int] = []  # a heap of the waiting joins (and of joins that have since come inside: skipped)
+    waiting: set[int] = set()
+    touching: dict[int, list[int]] = {}  # group -> joins waiting on it (some may have come inside since)
 
     def offer(index: int) -> None:
         a, b = comparators[index]
-        if groups.find(a) == groups.find(b):
+        group_a, group_b = groups.find(a), groups.find(b)
+        if group_a == group_b:
             inside.append(index)
         else:
             heapq.heappush(joins, index)
+            waiting.add(index)
+            touching.setdefault(group_a, []).append(index)
+            touching.setdefault(group_b, []).append(index)
+
+    def join(index: int) -> None:
+        # Only the joins between the two groups come inside; each of them waits on both, so the shorter
+        # list of the two finds them all (merging shorter into longer keeps the total work n log n).
+        a, b = comparators[index]
+        shorter, longer = sorted((touching.pop(groups.find(a), []), touching.pop(groups.find(b), [])), key=len)
+        groups.join(a, b)
+        for other in shorter:
+            if other in waiting and groups.find(comparators[other][0]) == groups.find(comparators[other][1]):
+                waiting.discard(other)
+                inside.append(other)
+        longer.extend(other for other in shorter if other in waiting)
+        touching[groups.find(a)] = longer
 
     for index, (a, b) in enumerate(comparators):
         if on_channel[a][0] == index and on_channel[b][0] == index:
             offer(index)
     order: list[int] = []
-    while inside or joins:
+    while inside or waiting:
         if inside:
             index = inside.pop()
         else:
             index = heapq.heappop(joins)
-            a, b = comparators[index]
-            groups.join(a, b)
-            waiting, joins = joins, []
-            for other in waiting:
-                offer(other)
+            if index not in waiting:
+                continue
+            waiting.discard(index)
+            join(index)
         order.append(index)
         for channel in comparators[index]:
             head[channel] += 1
