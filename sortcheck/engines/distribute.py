@@ -152,7 +152,9 @@ class LocalProcesses:
                     break
                 budget.report(sum(v is not None for v in verdicts), len(jobs), f"{engine.name}: pieces")
                 for connection in multiprocessing.connection.wait(list(busy), timeout=POLL_SECONDS):
-                    worker = busy.pop(connection)
+                    worker = busy.pop(connection, None)
+                    if worker is None:  # ended above, after a refutation in the same round
+                        continue
                     try:
                         number, (kind, payload) = connection.recv()
                     except (EOFError, OSError):
@@ -257,10 +259,13 @@ class DaskCluster:
                     break
                 budget.report(sum(v is not None for v in verdicts), len(jobs), f"{engine.name}: pieces")
                 pending = [f for n, f in enumerate(futures[:first_refuted]) if verdicts[n] is None]
-                wait(pending, timeout=POLL_SECONDS, return_when="FIRST_COMPLETED")
-                for number in range(first_refuted):
+                try:
+                    wait(pending, timeout=POLL_SECONDS, return_when="FIRST_COMPLETED")
+                except TimeoutError:
+                    pass
+                for number in range(len(jobs)):
                     future = futures[number]
-                    if verdicts[number] is None and future.done():
+                    if number < first_refuted and verdicts[number] is None and future.done():
                         verdicts[number] = future.result()
                         if verdicts[number].status == Status.REFUTED and not complete and number < first_refuted:
                             first_refuted = number

@@ -1,0 +1,275 @@
+"""Checks split into pieces: in this process, on local worker processes, and on a real Dask cluster on loopback.
+
+Every split run must give what the single-process run gives: the verdict, the
+counterexample (the first in evaluation order) and the count of failing
+inputs.  The networks are merge exchange networks (Knuth, TAOCP vol. 3,
+5.3.4: they sort) checked without the reduction, so that there are many
+pieces, and the same networks with a reversed comparator appended on the top
+two channels: after sorting, channel n-1 holds 1 exactly when some input is
+1 and channel n-2 exactly when two are, so the reversed comparator unsorts
+exactly the inputs with a single 1 -- n failing 0-1 inputs, the first in
+evaluation order being ``1 0 0 ... 0`` (worked out by hand, and confirmed
+below with the independent evaluator of ``tests/reference.py``).
+"""
+
+from __future__ import annotations
+
+import itertools
+import json
+import os
+import signal
+import threading
+import time
+
+import pytest
+
+from reference import breaks, run
+from sortcheck.engines import enumeration_pieces
+from sortcheck.engines.base import Budget, Options, Status
+from sortcheck.engines.distribute import InProcess, LocalProcesses, check_split, run_pieces
+from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.pieces import job_data, job_from_data
+from sortcheck.load import write_netlist
+from sortcheck.model import ComparatorNetwork, Sorts
+from sortcheck.model.families import build_family
+
+UNREDUCED = EnumerateEngine(reduction=False)
+
+
+def one_hot_breaker(n: int) -> ComparatorNetwork:
+    """Merge exchange on n channels, then the reversed comparator (n-1, n-2) (see the module text)."""
+    network = build_family("merge-exchange", n)
+    return ComparatorNetwork(n, network.comparators + ((n - 1, n - 2),))
+
+
+def missing_comparator(n: int, index: int) -> ComparatorNetwork:
+    network = build_family("merge-exchange", n)
+    return ComparatorNetwork(n, network.comparators[:index] + network.comparators[index + 1:])
+
+
+@pytest.fixture
+def split_everything(monkeypatch):
+    """Split every check that has at least two units, into about ``pieces`` pieces."""
+    def apply(pieces: int = 8):
+        monkeypatch.setattr(enumeration_pieces, "SPLIT_SECONDS", 0.0)
+        monkeypatch.setattr(enumeration_pieces, "PIECE_SECONDS", 1e-9)
+        monkeypatch.setattr(enumeration_pieces, "MAX_PIECES", pieces)
+    return apply
+
+
+@pytest.fixture(scope="module")
+def dask_address():
+    distributed = pytest.importorskip("distributed")
+    cluster = distributed.LocalCluster(processes=True, n_workers=2, threads_per_worker=1, host="127.0.0.1",
+                                       dashboard_address=None)
+    try:
+        yield cluster.scheduler_address
+    finally:
+        cluster.close()
+
+
+@pytest.fixture(scope="module")
+def dask_runner(dask_address):
+    from sortcheck.engines.distribute import DaskCluster
+    with DaskCluster(dask_address) as runner:
+        yield runner
+
+
+def same_as_single(engine, network, options, verdict):
+    whole = engine.check(network, Sorts(), Budget(), options)
+    assert verdict.status == whole.status
+    assert verdict.counterexample == whole.counterexample
+    for figure in ("failing_inputs", "vectors_evaluated", "vectors_total", "vectors_after_reduction"):
+        assert verdict.figures.get(figure) == whole.figures.get(figure), figure
+    return whole
+
+
+def test_the_one_hot_breaker_fails_exactly_on_inputs_with_a_single_one():
+    network = one_hot_breaker(10)  # the independent evaluator on all 1024 inputs
+    failing = [v for v in itertools.product((0, 1), repeat=10) if breaks(Sorts(), list(v), run(network.comparators, v))]
+    assert sorted(failing) == sorted(tuple(int(c == k) for c in range(10)) for k in range(10))
+
+
+def test_pieces_partition_the_units_in_a_fixed_order(split_everything):
+    split_everything(8)
+    network = build_family("merge-exchange", 22)
+    pieces = UNREDUCED.pieces(network, Sorts())
+    assert pieces == UNREDUCED.pieces(network, Sorts())
+    units = pieces[0]["of"]
+    assert units == 64  # 2^22 vectors: tiles of 2^16 lanes times 2^6 combinations
+    assert [p["units"][0] for p in pieces] == [0] + [p["units"][1] for p in pieces[:-1]]
+    assert pieces[-1]["units"][1] == units and len(pieces) == 8
+    assert json.loads(json.dumps(pieces)) == pieces
+
+
+def test_small_checks_are_not_split():
+    # merge exchange 24 reduces to 73 vectors: not worth any process start-up
+    assert EnumerateEngine().pieces(build_family("merge-exchange", 24), Sorts()) is None
+    verdict = check_split(build_family("merge-exchange", 24), runner=LocalProcesses(2))
+    assert verdict.status == Status.PROVED
+    assert verdict.figures["ran_on"] == "this process" and verdict.figures["pieces"] == 1
+
+
+def test_a_job_survives_plain_data():
+    network = one_hot_breaker(6)
+    data = job_data("enumerate", network, Sorts(), {"kind": "block", "units": [0, 1]}, Options(count=True), None)
+    assert json.loads(json.dumps(data)) == data
+    name, netlist, prop, piece, options, deadline = job_from_data(json.loads(json.dumps(data)))
+    assert (name, netlist, prop, piece, options, deadline) == (
+        "enumerate", network, Sorts(), {"kind": "block", "units": [0, 1]}, Options(count=True), None)
+
+
+def test_a_budget_stop_condition_stops_the_engine():
+    verdict = UNREDUCED.check(build_family("merge-exchange", 20), Sorts(), Budget(stopped=lambda: True))
+    assert verdict.status == Status.UNKNOWN
+
+
+@pytest.mark.parametrize("count", [False, True])
+@pytest.mark.parametrize("network", [build_family("merge-exchange", 22), one_hot_breaker(22),
+                                     missing_comparator(22, 60)], ids=["proved", "one-hot", "missing"])
+def test_local_processes_give_the_single_process_result(split_everything, network, count):
+    split_everything(8)
+    options = Options(count=count)
+    pieces = UNREDUCED.pieces(network, Sorts(), options)
+    for runner in (InProcess(), LocalProcesses(2)):
+        with runner:
+            verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), options, runner)
+        same_as_single(UNREDUCED, network, options, verdict)
+        assert verdict.figures["pieces"] == 8 and verdict.figures["ran_on"] == runner.ran_on
+    if network.comparators[-1] == (21, 20):
+        assert verdict.counterexample.input == (1,) + (0,) * 21
+        assert (verdict.figures.get("failing_inputs") == 22) == count
+
+
+def test_the_reduced_check_splits_the_same_way(split_everything):
+    split_everything(6)
+    network = build_family("odd-even-transposition", 32)  # sorts (Knuth, TAOCP vol. 3, 5.3.4, exercise 37)
+    engine = EnumerateEngine()
+    pieces = engine.pieces(network, Sorts())
+    assert len(pieces) == 6
+    with LocalProcesses(2) as runner:
+        verdict = run_pieces(engine, network, Sorts(), pieces, Budget(), Options(), runner)
+    same_as_single(engine, network, Options(), verdict)
+    assert verdict.status == Status.PROVED and "checked in 6 pieces on 2 local processes" in verdict.scope
+
+
+def cancellation_case(split_everything):
+    """The one-hot breaker on 30 channels in 64 pieces, and the seconds one late (proved) piece takes."""
+    split_everything(64)
+    network = one_hot_breaker(30)
+    pieces = UNREDUCED.pieces(network, Sorts())
+    started = time.perf_counter()
+    late = UNREDUCED.check_piece(network, Sorts(), pieces[-1], Budget(), Options())
+    assert late.status == Status.PROVED
+    return network, pieces, time.perf_counter() - started
+
+
+def test_the_first_counterexample_cancels_the_other_local_pieces(split_everything):
+    network, pieces, piece_seconds = cancellation_case(split_everything)
+    would_take = piece_seconds * len(pieces) / 2  # every piece on two processes
+    started = time.perf_counter()
+    with LocalProcesses(2) as runner:
+        verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), runner)
+    elapsed = time.perf_counter() - started
+    assert verdict.status == Status.REFUTED and verdict.counterexample.input == (1,) + (0,) * 29
+    assert elapsed < would_take / 4, (elapsed, would_take)
+
+
+def test_a_killed_local_worker_is_replaced_and_the_check_completes(split_everything):
+    psutil = pytest.importorskip("psutil")
+    split_everything(16)
+    network = build_family("merge-exchange", 27)
+    pieces = UNREDUCED.pieces(network, Sorts())
+    outcome = {}
+    with LocalProcesses(2) as runner:
+        thread = threading.Thread(target=lambda: outcome.update(
+            verdict=run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), runner)))
+        thread.start()
+        children = []
+        while thread.is_alive() and not children:
+            time.sleep(0.05)
+            children = psutil.Process().children()
+        time.sleep(0.1)
+        assert thread.is_alive(), "the check ended before a worker could be killed"
+        os.kill(children[0].pid, signal.SIGKILL)
+        thread.join(60)
+    same_as_single(UNREDUCED, network, Options(), outcome["verdict"])
+    assert outcome["verdict"].figures["vectors_evaluated"] == 1 << 27
+
+
+@pytest.mark.parametrize("count", [False, True])
+@pytest.mark.parametrize("network", [build_family("merge-exchange", 22), one_hot_breaker(22)],
+                         ids=["proved", "one-hot"])
+def test_dask_gives_the_single_process_result(split_everything, dask_runner, network, count):
+    split_everything(8)
+    options = Options(count=count)
+    pieces = UNREDUCED.pieces(network, Sorts(), options)
+    verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), options, dask_runner)
+    same_as_single(UNREDUCED, network, options, verdict)
+    assert verdict.figures["ran_on"].startswith("dask tcp://127.0.0.1:")
+
+
+def test_the_first_counterexample_cancels_running_dask_pieces(split_everything, dask_runner):
+    network, pieces, piece_seconds = cancellation_case(split_everything)
+    would_take = piece_seconds * len(pieces) / 2
+    started = time.perf_counter()
+    verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), dask_runner)
+    elapsed = time.perf_counter() - started
+    assert verdict.status == Status.REFUTED and verdict.counterexample.input == (1,) + (0,) * 29
+    assert elapsed < would_take / 4, (elapsed, would_take)
+    # the workers are free again soon: the running pieces polled the stop variable
+    client = dask_runner.client
+    deadline = time.monotonic() + 10
+    while any(client.processing().values()) and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert not any(client.processing().values())
+
+
+def test_cli_runs_pieces_on_local_processes_and_on_dask(split_everything, dask_address, tmp_path, capsys):
+    from sortcheck.cli import main
+
+    split_everything(4)
+    # odd-even transposition on 30 channels without its fifth comparator from the end: the reduction
+    # leaves 122,865 vectors in 15 combinations, so the check splits with the reduction on
+    network = build_family("odd-even-transposition", 30)
+    path = tmp_path / "transposition-30-broken.json"
+    write_netlist(ComparatorNetwork(30, network.comparators[:-5] + network.comparators[-4:]), path)
+    reports = {}
+    for where in (["--jobs", "1"], ["--jobs", "2"], ["--cluster", dask_address]):
+        status = main(["check", str(path), "--count", "--no-minimize", "--format", "json", *where])
+        assert status == 1
+        (result,) = json.loads(capsys.readouterr().out)["results"]
+        reports[where[0] + where[1]] = result
+    assert reports["--jobs1"]["figures"]["ran_on"] == "this process"
+    assert reports["--jobs2"]["figures"]["ran_on"] == "2 local processes"
+    assert reports[f"--cluster{dask_address}"]["figures"]["ran_on"] == f"dask {dask_address}"
+    single = reports.pop("--jobs1")
+    example = single["counterexample"]["input"]
+    assert breaks(Sorts(), example, run(network.comparators[:-5] + network.comparators[-4:], example))
+    for result in reports.values():
+        assert result["figures"]["pieces"] == 4
+        assert result["counterexample"] == single["counterexample"]
+        assert result["figures"]["failing_inputs"] == single["figures"]["failing_inputs"] > 0
+    assert main(["check", str(path), "--jobs", "2", "--no-minimize"]) == 1
+    assert "in 4 pieces on 2 local processes" in capsys.readouterr().out
+
+
+def test_a_killed_dask_worker_is_replaced_and_the_check_completes(split_everything, dask_runner):
+    split_everything(16)
+    network = build_family("merge-exchange", 27)
+    pieces = UNREDUCED.pieces(network, Sorts())
+    client = dask_runner.client
+    outcome = {}
+    thread = threading.Thread(target=lambda: outcome.update(
+        verdict=run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), dask_runner)))
+    thread.start()
+    while thread.is_alive() and not any(client.processing().values()):
+        time.sleep(0.02)
+    time.sleep(0.2)
+    assert thread.is_alive(), "the check ended before a worker could be killed"
+    victim = next(iter(client.run(os.getpid).values()))
+    os.kill(victim, signal.SIGKILL)
+    thread.join(90)
+    same_as_single(UNREDUCED, network, Options(), outcome["verdict"])
+    assert outcome["verdict"].figures["vectors_evaluated"] == 1 << 27
+    client.wait_for_workers(2, timeout=60)
