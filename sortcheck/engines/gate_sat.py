@@ -46,7 +46,7 @@ from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
 
 #: Words of at most this many bits are asked one threshold at a time; wider ones with the threshold free.
-PER_THRESHOLD_WIDTH = 4
+PER_THRESHOLD_WIDTH = 3
 
 #: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
 PIECES = 4
