@@ -36,3 +36,58 @@ def test_zero_one_conditions_match_their_golden_file():
         derived = ["".join(map(str, v)) for v in itertools.product((0, 1), repeat=network.channels)
                    if breaks(prop, list(v), run(network.comparators, v))]
         assert sorted(derived) == sorted(expected), short
+
+
+# --- gate circuits: the Tseitin CNF and the threshold conditions (encodings/gate-*.md) --------------------------
+
+def _pair_circuit():
+    from sortcheck.model.lowering import lower_network
+    return lower_network(ComparatorNetwork(2, ((0, 1),), name="pair"), 2, style="mux")
+
+
+def _golden_cnf(name):
+    text = (ENCODINGS / name).read_text()
+    words = {}
+    for line in text.splitlines():
+        parts = line.split()
+        if line.startswith(("c input word", "c output word", "c threshold word")):
+            words[parts[3]] = [int(p) for p in parts[6:parts.index("(least")]]
+    clauses = [[int(p) for p in line.split()[:-1]] for line in text.splitlines() if line and line[0] not in "cp"]
+    return text, words, clauses
+
+
+def test_gate_circuit_cnf_matches_its_golden_file():
+    from pysat.solvers import Solver
+    from sortcheck.engines.gate_spec import circuit_cnf
+    from sortcheck.engines.network_cnf import dimacs
+
+    text, words, clauses = _golden_cnf("gate-circuit-cnf.golden.cnf")
+    assert dimacs(*circuit_cnf(_pair_circuit())) == text
+    # Independent reading: on every input the CNF forces the outputs to (min, max), computed with sorted.
+    with Solver(name="cadical195", bootstrap_with=clauses) as solver:
+        for a, b in itertools.product(range(4), repeat=2):
+            fixed = [v if (value >> i) & 1 else -v for name, value in (("x0", a), ("x1", b))
+                     for i, v in enumerate(words[name])]
+            assert solver.solve(assumptions=fixed)
+            true = {l for l in solver.get_model() if l > 0}
+            got = [sum(1 << i for i, l in enumerate(words[y]) if (abs(l) in true) == (l > 0)) for y in ("y0", "y1")]
+            assert got == sorted([a, b])
+            for literal in words["y0"] + words["y1"]:  # the outputs are functions of the inputs
+                other = -literal if (abs(literal) in true) == (literal > 0) else literal
+                assert not solver.solve(assumptions=fixed + [other])
+
+
+def test_gate_threshold_conditions_match_their_golden_file():
+    from pysat.solvers import Solver
+    from sortcheck.engines.gate_spec import gate_violation_cnf
+    from sortcheck.engines.network_cnf import dimacs
+    from sortcheck.model import GateCircuit, OutputWord, Sorts
+
+    text, words, clauses = _golden_cnf("gate-threshold-conditions.golden.cnf")
+    circuit = _pair_circuit()
+    assert dimacs(*gate_violation_cnf(circuit, Sorts())) == text
+    with Solver(name="cadical195", bootstrap_with=clauses) as solver:
+        assert not solver.solve()  # a compare-and-swap sorts two words (Python's sorted, above)
+    swapped = GateCircuit(circuit.inputs, circuit.gates, tuple(OutputWord(w.name, w.bits) for w in circuit.outputs[::-1]))
+    with Solver(name="cadical195", bootstrap_with=gate_violation_cnf(swapped, Sorts())[0]) as solver:
+        assert solver.solve()  # (max, min) does not
