@@ -273,3 +273,20 @@ def test_a_killed_dask_worker_is_replaced_and_the_check_completes(split_everythi
     same_as_single(UNREDUCED, network, Options(), outcome["verdict"])
     assert outcome["verdict"].figures["vectors_evaluated"] == 1 << 27
     client.wait_for_workers(2, timeout=60)
+
+
+@pytest.mark.parametrize("where", ["local", "dask"])
+def test_a_deadline_ends_a_split_check_with_unknown(split_everything, request, where):
+    split_everything(16)
+    network = build_family("merge-exchange", 29)  # about 5 s of evaluation without the reduction
+    pieces = UNREDUCED.pieces(network, Sorts())
+    runner = LocalProcesses(2) if where == "local" else request.getfixturevalue("dask_runner")
+    started = time.perf_counter()
+    verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget.of(0.5), Options(), runner)
+    elapsed = time.perf_counter() - started
+    if where == "local":
+        runner.close()
+    assert verdict.status == Status.UNKNOWN and verdict.stop.value == "timeout"
+    assert "nothing is proved" in verdict.scope
+    assert verdict.figures.get("vectors_evaluated", 0) < 1 << 29
+    assert elapsed < 2.0

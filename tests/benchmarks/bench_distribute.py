@@ -1,0 +1,178 @@
+"""Benchmark: checks split into pieces on 2 worker processes (and on Dask) against one process, in one run.
+
+Run from the repository root (best on a quiet machine; the load is printed)::
+
+    python tests/benchmarks/bench_distribute.py          # everything (about two minutes)
+    python tests/benchmarks/bench_distribute.py --quick  # smaller checks
+
+Rows:
+
+* enumeration, proved: merge exchange without the reduction (every 0-1
+  input evaluated), one process against 2 local worker processes;
+* enumeration, counted: a random 40-channel network (first layer a perfect
+  matching, then 4n random comparators; seed 1), ``--count`` with the
+  reduction, as ``sortcheck check --count`` runs it;
+* per-threshold SAT on a gate circuit, when the gate-circuit SAT engine is
+  present (``sortcheck.engines.gate_sat``);
+* the cut-off: merge exchange without the reduction on 22..27 channels, the
+  engine's estimate against the measured times whole and split;
+* Dask: a ``LocalCluster`` of 2 worker processes on loopback, the overhead per
+  piece (64 tiny pieces) and the speed-up on the proved row;
+* ``sortcheck check corpus/merge-exchange-24.json`` as a new process with the
+  default ``--jobs`` (start-up included).
+"""
+
+from __future__ import annotations
+
+import os
+import random
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+from sortcheck.engines import enumeration_pieces
+from sortcheck.engines.base import Budget, Options
+from sortcheck.engines.distribute import InProcess, LocalProcesses, run_pieces
+from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.model import ComparatorNetwork, Sorts
+from sortcheck.model.families import build_family
+
+ROOT = Path(__file__).resolve().parents[2]
+UNREDUCED = EnumerateEngine(reduction=False)
+
+
+def load() -> str:
+    one, five, _ = os.getloadavg()
+    return f"load average {one:.2f} (1 min), {five:.2f} (5 min) on {os.cpu_count()} cores"
+
+
+def random_network(n: int, per_channel: int, seed: int) -> ComparatorNetwork:
+    rng = random.Random(seed)
+    comparators = [(i, i + 1) for i in range(0, n - 1, 2)]
+    for _ in range(per_channel * n):
+        comparators.append(tuple(sorted(rng.sample(range(n), 2))))
+    return ComparatorNetwork(n, tuple(comparators), name=f"random-{n}")
+
+
+def timed(function):
+    started = time.perf_counter()
+    result = function()
+    return result, time.perf_counter() - started
+
+
+def whole_and_split(engine, network, options, runner, pieces=None):
+    """(seconds whole in this process, seconds split on ``runner``, pieces); the two verdicts must agree."""
+    whole, whole_seconds = timed(lambda: engine.check(network, Sorts(), Budget(), options))
+    pieces = pieces or engine.pieces(network, Sorts(), options)
+    if not pieces:
+        return whole_seconds, None, 0
+    split, split_seconds = timed(lambda: run_pieces(engine, network, Sorts(), pieces, Budget(), options, runner))
+    assert split.status == whole.status and split.counterexample == whole.counterexample
+    assert split.figures.get("failing_inputs") == whole.figures.get("failing_inputs")
+    return whole_seconds, split_seconds, len(pieces)
+
+
+def row(label: str, whole: float, split: float | None, pieces: int, where: str = "2 processes") -> None:
+    if split is None:
+        print(f"| {label} | {whole:.2f} s | not split | |")
+    else:
+        print(f"| {label} | {whole:.2f} s | {split:.2f} s ({pieces} pieces) | {whole / split:.2f}x on {where} |")
+
+
+def enumeration_rows(quick: bool, runner) -> None:
+    print("\n| check | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
+    n = 27 if quick else 29
+    row(f"merge exchange {n}, no reduction (2^{n} vectors), proved",
+        *whole_and_split(UNREDUCED, build_family("merge-exchange", n), Options(), runner))
+    network = random_network(38 if quick else 40, 4, 1)
+    row(f"random {network.channels} channels, --count, with the reduction",
+        *whole_and_split(EnumerateEngine(), network, Options(count=True), runner))
+
+
+def gate_rows(quick: bool, runner) -> None:
+    try:
+        from sortcheck.engines.gate_sat import GateSatEngine
+        from sortcheck.model.circuit_builds import build_circuit
+    except ImportError:
+        print("\nper-threshold SAT: the gate-circuit SAT engine is not in this tree; not measured")
+        return
+    engine = GateSatEngine(samples=0)
+    print("\n| gate circuit, threshold SAT | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
+    for family, words, width in ((("bitonic", 8, 4),) if quick else (("bitonic", 8, 5), ("merge-exchange", 12, 4))):
+        circuit = build_circuit(family, words, width)
+        if not hasattr(engine, "pieces") or engine.pieces(circuit, Sorts()) is None:
+            print(f"| {family} {words} x {width} | not split by the engine | | |")
+            continue
+        row(f"{family} {words} words x {width} bits", *whole_and_split(engine, circuit, Options(), runner))
+
+
+def cutoff_rows(runner) -> None:
+    print("\n| merge exchange, no reduction | estimate | 1 process | 2 processes, 8 pieces | ratio |\n"
+          "| --- | --- | --- | --- | --- |")
+    saved = enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES
+    enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = 0, 1e-9, 8
+    try:
+        for n in range(22, 28):
+            network = build_family("merge-exchange", n)
+            space, layout = enumeration_pieces.reduced_layout(network, Sorts(), False)
+            estimate = enumeration_pieces.estimated_seconds(layout, len(space.suffix), False)
+            whole, split, pieces = whole_and_split(UNREDUCED, network, Options(), runner)
+            print(f"| {n} channels | {estimate:.2f} s | {whole:.3f} s | {split:.3f} s | {whole / split:.2f}x |")
+    finally:
+        enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = saved
+
+
+def overhead_per_piece(runner, pieces: int = 64) -> float:
+    """Seconds per piece that ``runner`` adds to 64 tiny pieces run in this process."""
+    saved = enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES
+    enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = 0, 1e-9, pieces
+    try:
+        network = build_family("merge-exchange", 22)
+        piece_list = UNREDUCED.pieces(network, Sorts())
+        run_pieces(UNREDUCED, network, Sorts(), piece_list, Budget(), Options(), runner)  # warm up the workers
+        _, here = timed(lambda: run_pieces(UNREDUCED, network, Sorts(), piece_list, Budget(), Options(), InProcess()))
+        _, there = timed(lambda: run_pieces(UNREDUCED, network, Sorts(), piece_list, Budget(), Options(), runner))
+        return (there * getattr(runner, "jobs", 2) - here) / len(piece_list)
+    finally:
+        enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = saved
+
+
+def dask_rows(quick: bool) -> None:
+    try:
+        from distributed import LocalCluster
+    except ImportError:
+        print("\nDask: not installed (pip install 'sortcheck[cluster]'); not measured")
+        return
+    from sortcheck.engines.distribute import DaskCluster
+
+    with LocalCluster(processes=True, n_workers=2, threads_per_worker=1, host="127.0.0.1",
+                      dashboard_address=None) as cluster, DaskCluster(cluster.scheduler_address) as runner:
+        print(f"\nDask overhead per piece (64 tiny pieces, 2 workers): {overhead_per_piece(runner) * 1000:.1f} ms")
+        n = 27 if quick else 29
+        print("\n| check | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
+        row(f"merge exchange {n}, no reduction, proved",
+            *whole_and_split(UNREDUCED, build_family("merge-exchange", n), Options(), runner), where="Dask")
+
+
+def cli_start() -> float:
+    command = [sys.executable, "-m", "sortcheck", "check", str(ROOT / "corpus" / "merge-exchange-24.json")]
+    best = min(timed(lambda: subprocess.run(command, capture_output=True, check=True))[1] for _ in range(3))
+    return best
+
+
+def main() -> None:
+    quick = "--quick" in sys.argv
+    print(f"{load()}; python {sys.version.split()[0]}")
+    with LocalProcesses(2) as runner:
+        enumeration_rows(quick, runner)
+        gate_rows(quick, runner)
+        cutoff_rows(runner)
+        print(f"\nlocal processes: overhead per piece {overhead_per_piece(runner) * 1000:.1f} ms")
+    dask_rows(quick)
+    print(f"\nsortcheck check corpus/merge-exchange-24.json, new process, default --jobs: {cli_start():.2f} s")
+    print(f"\n{load()}")
+
+
+if __name__ == "__main__":
+    main()
