@@ -15,7 +15,7 @@ from typing import Sequence, TextIO
 
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
-from sortcheck.engines.distribute import default_jobs, make_runner
+from sortcheck.engines.distribute import InProcess, default_jobs, make_runner
 from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
@@ -228,10 +228,12 @@ def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: T
     if args.jobs is None:
         args.jobs = default_jobs()
     if args.jobs > 1 and len(requests) > 1 and not args.cluster:
-        with ProcessPoolExecutor(max_workers=min(args.jobs, len(requests))) as pool:
+        workers = min(args.jobs, len(requests))
+        where = InProcess(f"one of {workers} local processes checking a file each", splits=False)
+        with ProcessPoolExecutor(max_workers=workers) as pool:
             return list(pool.map(_check_request, requests, [args.count] * len(requests),
                                  [not args.no_minimize] * len(requests), [None] * len(requests),
-                                 [args.certify] * len(requests)))
+                                 [args.certify] * len(requests), [where] * len(requests)))
     results = []
     with make_runner(args.jobs, args.cluster) as runner:
         for request in requests:
