@@ -17,6 +17,7 @@ from __future__ import annotations
 import itertools
 import json
 import os
+import random
 import signal
 import threading
 import time
@@ -30,7 +31,7 @@ from sortcheck.engines.distribute import InProcess, LocalProcesses, check_split,
 from sortcheck.engines.enumeration import EnumerateEngine
 from sortcheck.engines.pieces import job_data, job_from_data
 from sortcheck.load import write_netlist
-from sortcheck.model import ComparatorNetwork, Sorts
+from sortcheck.model import ComparatorNetwork, Median, Merges, Selects, Sorts
 from sortcheck.model.families import build_family
 
 UNREDUCED = EnumerateEngine(reduction=False)
@@ -151,6 +152,33 @@ def test_the_reduced_check_splits_the_same_way(split_everything):
         verdict = run_pieces(engine, network, Sorts(), pieces, Budget(), Options(), runner)
     same_as_single(engine, network, Options(), verdict)
     assert verdict.status == Status.PROVED and "checked in 6 pieces on 2 local processes" in verdict.scope
+
+
+@pytest.mark.parametrize("prop", [Sorts(order="descending"), Selects(count=3, sorted=True), Median(),
+                                  Merges(split=9)], ids=lambda p: p.short())
+@pytest.mark.parametrize("seed", range(3))
+def test_every_property_splits_to_the_same_result(split_everything, prop, seed):
+    split_everything(5)
+    rng = random.Random(seed)
+    base = list(build_family("merge-exchange", 19).comparators)
+    if prop == Sorts(order="descending"):
+        base = [(b, a) for a, b in base]
+    del base[rng.randrange(len(base))]  # usually breaks it, with few failing inputs
+    network = ComparatorNetwork(19, tuple(base))
+    for count in (False, True):
+        options = Options(count=count)
+        pieces = UNREDUCED.pieces(network, prop, options)
+        if isinstance(prop, Merges):  # (m+1)(n-m+1) inputs: one unit, nothing to split
+            assert pieces is None
+            continue
+        assert len(pieces) == 5
+        verdict = run_pieces(UNREDUCED, network, prop, pieces, Budget(), options, InProcess())
+        whole = UNREDUCED.check(network, prop, Budget(), options)
+        assert (verdict.status, verdict.counterexample) == (whole.status, whole.counterexample)
+        assert verdict.figures.get("failing_inputs") == whole.figures.get("failing_inputs")
+        if verdict.counterexample is not None:
+            example = list(verdict.counterexample.input)
+            assert breaks(prop, example, run(network.comparators, example))  # tests/reference.py
 
 
 def cancellation_case(split_everything):
