@@ -1,8 +1,8 @@
 """Repairs and suspects of gate circuits, every repair re-checked here without the project's evaluators.
 
-A repaired circuit is judged by :func:`holds_everywhere`: every input is run
-through the gates by :func:`run_gates` (the ops' truth tables written out
-here) and judged with the property's definition written with Python's
+A repaired circuit is judged by ``tests/gate_reference.holds_everywhere``:
+every input is run through the gates with the ops' truth tables written out
+there, and judged with the property's definition written with Python's
 ``sorted`` (``tests/reference.breaks``).
 """
 
@@ -15,7 +15,7 @@ from dataclasses import replace
 import pytest
 from pysat.solvers import Solver
 
-from reference import breaks
+from gate_reference import breaks_words, holds_everywhere, run_gates, signed_values
 from sortcheck.cli import main
 from sortcheck.engines import Budget
 from sortcheck.engines.gate_cnf import CnfBuilder
@@ -25,62 +25,6 @@ from sortcheck.explain.gate_repair_cnf import alternative_ops, meets_clauses, op
 from sortcheck.load import dump_netlist
 from sortcheck.model import Median, Merges, PartialSort, Selects, Sorts
 from sortcheck.model.circuit_builds import build_circuit
-
-OPS = {"and": lambda v: int(all(v)), "or": lambda v: int(any(v)), "xor": lambda v: sum(v) % 2,
-       "nand": lambda v: 1 - int(all(v)), "nor": lambda v: 1 - int(any(v)), "xnor": lambda v: 1 - sum(v) % 2,
-       "not": lambda v: 1 - v[0], "mux": lambda v: v[2] if v[0] else v[1]}
-
-
-def evaluation_order(circuit):
-    """The gates in an order in which each gate's inputs are computed before it (repeated passes)."""
-    known = {f"{word.name}[{i}]" for word in circuit.inputs for i in range(word.width)} | {0, 1}
-    order, pending = [], list(circuit.gates)
-    while pending:
-        ready = [gate for gate in pending if all(source in known for source in gate.inputs)]
-        assert ready, "a cycle"
-        order += ready
-        known |= {gate.out for gate in ready}
-        pending = [gate for gate in pending if gate.out not in known]
-    return order
-
-
-def run_gates(circuit, words, order=None):
-    """The output words of ``circuit`` on unsigned input words, every gate by its truth table above."""
-    signals = {0: 0, 1: 1}
-    for word, value in zip(circuit.inputs, words):
-        for i in range(word.width):
-            signals[f"{word.name}[{i}]"] = (value >> i) & 1
-    for gate in order or evaluation_order(circuit):
-        signals[gate.out] = OPS[gate.op]([signals[s] for s in gate.inputs])
-    return [sum(signals[b] << i for i, b in enumerate(word.bits)) for word in circuit.outputs]
-
-
-def signed_values(words, width, signed):
-    return [w - (1 << width) if signed and w >> (width - 1) else w for w in words]
-
-
-def breaks_words(prop, inputs, outputs, width):
-    """``reference.breaks``, plus partial sorts (keys: the top bits, with Python's floor shift) and one-word medians."""
-    if isinstance(prop, PartialSort):
-        shift = width - prop.key_bits
-        keys = [value >> shift for value in outputs]
-        if sorted(outputs) != sorted(inputs) or keys != sorted(keys):
-            return True
-        return prop.stable and list(outputs) != sorted(inputs, key=lambda value: value >> shift)
-    if isinstance(prop, Median) and len(outputs) == 1:
-        return outputs[0] != sorted(inputs)[(len(inputs) - 1) // 2]
-    return breaks(prop, list(inputs), list(outputs))
-
-
-def holds_everywhere(circuit, prop):
-    width, order = circuit.width, evaluation_order(circuit)
-    for words in itertools.product(range(1 << width), repeat=circuit.words):
-        inputs = signed_values(words, width, prop.signed)
-        outputs = signed_values(run_gates(circuit, words, order), width, prop.signed)
-        if breaks_words(prop, inputs, outputs, width):
-            return False
-    return True
-
 
 FLIP = {"and": "or", "or": "and", "xor": "xnor", "xnor": "xor", "mux": "xor"}
 

@@ -74,11 +74,19 @@ class CircuitFailures:
         flags = [self._chunk(list(inputs[start:start + CHUNK])) for start in range(0, len(inputs), CHUNK)]
         return np.concatenate(flags) if flags else np.zeros(0, dtype=bool)
 
+    def failing_array(self, inputs: np.ndarray) -> np.ndarray:
+        """Like :meth:`failing`, for raw inputs as a ``(count, words)`` ``uint64`` array (words of at most 64 bits)."""
+        flags = [self._limbs(inputs[start:start + CHUNK, :, None]) for start in range(0, len(inputs), CHUNK)]
+        return np.concatenate(flags) if flags else np.zeros(0, dtype=bool)
+
     def _chunk(self, inputs: list[Sequence[int]]) -> np.ndarray:
-        count = len(inputs)
+        return self._limbs(ints_to_limbs([tuple(row) for row in inputs], self.words, self.width))
+
+    def _limbs(self, limbs: np.ndarray) -> np.ndarray:
+        count = len(limbs)
         lanes = -(-count // 64) * 64
-        padded = [tuple(row) for row in inputs] + [(0,) * self.words] * (lanes - count)
-        limbs = ints_to_limbs(padded, self.words, self.width)
+        if lanes != count:
+            limbs = np.concatenate([limbs, np.zeros((lanes - count, *limbs.shape[1:]), dtype=np.uint64)])
         rows = limbs_to_rows(limbs, self.width)
         table = new_table(self.program, rows.shape[1])
         output_rows = evaluate_rows(self.program, table, rows)

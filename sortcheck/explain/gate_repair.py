@@ -311,7 +311,8 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
         return outcome("budget", "the time budget ran out while searching op changes", searched, suspects=suspects)
     if counts["undecided"]:
         return outcome("unknown", f"no op change of at most {max_changes} gate(s) was proved, and "
-                       f"{counts['undecided']} could not be decided", searched, suspects=suspects)
+                       f"{counts['undecided']} passed every tried input but could not be decided, last: "
+                       f"{counts['undecided_example']}", searched, suspects=suspects)
     return outcome("none", f"no op change of at most {max_changes} gate(s) makes the circuit {prop.describe()}: "
                    f"none gets all {bank_size} tried inputs right", searched, suspects=suspects)
 
@@ -346,6 +347,7 @@ def _cegar(circuit: GateCircuit, prop: Property, search: _Search, budget: Budget
             return "budget", (), None, None
         else:
             counts["undecided"] += 1
+            counts["undecided_example"] = f"{'; '.join(c.describe() for c in changes)} ({verdict.scope})"
             cnf.builder.clauses.append([-cnf.choices[name][op] for name, op in chosen.items()])
     return "budget", (), None, None
 

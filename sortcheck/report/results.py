@@ -17,9 +17,10 @@ from sortcheck.errors import SortcheckError
 from sortcheck.explain import (
     Diagnosis, Trace, diagnose_network, minimize_network_counterexample, permutation_of, trace_network,
 )
+from sortcheck.explain.gate_minimal import minimize_circuit_counterexample
 from sortcheck.explain.trace import fits_in_report
 from sortcheck.load import read_netlist
-from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, Netlist, Property, check_fits
+from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, GateCircuit, Netlist, Property, check_fits
 
 #: Exit statuses of ``sortcheck check`` (and ``stats``, which only uses 0 and 2).
 EXIT_PROVED, EXIT_REFUTED, EXIT_ERROR, EXIT_UNKNOWN = 0, 1, 2, 3
@@ -86,8 +87,17 @@ MINIMIZE_SECONDS = 10.0
 
 def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeout: float | None
                        ) -> tuple[Verdict, Diagnosis | None, Trace | None]:
-    """Minimise (unless asked not to), diagnose and trace the counterexample of a refuted network."""
+    """Minimise (unless asked not to), diagnose and trace the counterexample of a refuted network.
+
+    A gate circuit's counterexample is only minimised (fewest one bits over all input words).
+    """
     example = verdict.counterexample
+    if isinstance(netlist, GateCircuit) and example is not None and example.domain == "words":
+        if minimize:
+            budget = Budget.of(timeout if timeout is not None else MINIMIZE_SECONDS)
+            verdict = replace(verdict, counterexample=minimize_circuit_counterexample(netlist, verdict.prop, example,
+                                                                                      budget))
+        return verdict, None, None
     if not isinstance(netlist, ComparatorNetwork) or example is None or example.domain != "0-1":
         return verdict, None, None
     if minimize:

@@ -82,7 +82,8 @@ def format_result(result: FileResult) -> list[str]:
             lines += value_rows("as", example.permutation, "words", max(len(str(v)) for v in example.permutation))
         lines.append(f"{INDENT}{example.violation}")
         if example.minimal is not None:
-            side = "ones or zeros, whichever are fewer"
+            side = ("one bits over all input words" if example.domain == "words"
+                    else "ones or zeros, whichever are fewer")
             lines.append(f"{INDENT}{'smallest' if example.minimal else 'small (not proved smallest)'} "
                          f"counterexample: {example.ones} {side}")
         if result.diagnosis is not None:
