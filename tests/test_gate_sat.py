@@ -11,6 +11,7 @@ are at most 4 of them, so every input is evaluated.
 from __future__ import annotations
 
 import itertools
+import time
 
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
@@ -253,6 +254,11 @@ def test_simulation_decides_first_and_budgets_hold():
     late = SAT_ONLY.check(hard, Sorts(), Budget.of(0.5))
     assert late.status is Status.UNKNOWN and late.stop is StopReason.TIMEOUT and "nothing is proved" in late.scope
     assert late.seconds < 10
+    began = time.monotonic()
+    cancelled = SAT_ONLY.check_piece(hard, Sorts(), SAT_ONLY.pieces(hard, Sorts())[1],
+                                     Budget.of(None, stopped=lambda: time.monotonic() > began + 1.0))
+    assert cancelled.status is Status.UNKNOWN and cancelled.stop is StopReason.TIMEOUT
+    assert time.monotonic() - began < 10
 
 
 def test_refusals():

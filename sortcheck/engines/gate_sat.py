@@ -51,6 +51,9 @@ PER_THRESHOLD_WIDTH = 3
 #: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
 PIECES = 4
 
+#: Seconds between looks at the budget while the solver runs.
+POLL = 0.05
+
 #: Random inputs simulated before any SAT call.
 SIMULATION_SAMPLES = 1 << 14
 
@@ -66,18 +69,26 @@ class _Tally:
 
 
 def _solve(solver: Solver, assumptions: list[int], budget: Budget) -> bool | None:
-    """The solver's answer under ``assumptions``; None when the deadline passed first."""
-    remaining = budget.remaining()
-    if remaining is None:
-        return solver.solve(assumptions=assumptions)
-    if remaining <= 0:
+    """The solver's answer under ``assumptions``; None when the budget ran out (deadline or stop condition) first."""
+    if budget.expired():
         return None
-    timer = threading.Timer(remaining, solver.interrupt)
-    timer.start()
+    if budget.deadline is None and budget.stopped is None:
+        return solver.solve(assumptions=assumptions)
+    finished = threading.Event()
+
+    def watch() -> None:  # interrupt at the deadline or when the stop condition turns true
+        while not finished.wait(POLL):
+            if budget.expired():
+                solver.interrupt()
+                return
+
+    watcher = threading.Thread(target=watch, daemon=True)
+    watcher.start()
     try:
         answer = solver.solve_limited(assumptions=assumptions, expect_interrupt=True)
     finally:
-        timer.cancel()
+        finished.set()
+        watcher.join()
     solver.clear_interrupt()
     return answer
 
