@@ -63,6 +63,7 @@ class _Tally:
     """Figures gathered over one check."""
 
     sat_calls: int = 0
+    thresholds_asked: int = 0
     thresholds_proved: int = 0
     solver_seconds: float = 0.0
     simulated: bool = False
@@ -222,6 +223,7 @@ class GateSatEngine:
                 answer = _solve(solver, assumptions, budget)
                 tally.solver_seconds += time.perf_counter() - began
                 tally.sat_calls += 1
+                tally.thresholds_asked += values[1] - values[0] + 1 if question.method == "threshold" else 0
                 if answer is None:
                     return self._unknown(circuit, prop, question, done, len(calls), tally, started, figures)
                 if answer:
@@ -241,7 +243,7 @@ class GateSatEngine:
                 "all_nodes_hashed_away": question.builder.asked - question.builder.encoded}
 
     def _finish(self, figures: dict, tally: _Tally, started: float) -> dict:
-        figures.update(sat_calls=tally.sat_calls, thresholds_asked=tally.sat_calls,
+        figures.update(sat_calls=tally.sat_calls, thresholds_asked=tally.thresholds_asked,
                        thresholds_proved=tally.thresholds_proved, solver_seconds=round(tally.solver_seconds, 4),
                        simulated=self.samples if tally.simulated else 0, seconds=time.perf_counter() - started)
         return figures
