@@ -318,3 +318,17 @@ def test_a_deadline_ends_a_split_check_with_unknown(split_everything, request, w
     assert "nothing is proved" in verdict.scope
     assert verdict.figures.get("vectors_evaluated", 0) < 1 << 29
     assert elapsed < 2.0
+
+
+def test_an_unreachable_scheduler_is_a_usage_error_only_when_pieces_need_it(split_everything):
+    pytest.importorskip("distributed")
+    from sortcheck.engines.distribute import DaskCluster
+    from sortcheck.errors import UsageError
+
+    runner = DaskCluster("tcp://127.0.0.1:9", connect_seconds=1.0)  # the discard port: nothing listens
+    small = check_split(build_family("merge-exchange", 24), runner=runner)  # not split: never connects
+    assert small.status == Status.PROVED and small.figures["ran_on"] == "this process"
+    split_everything(4)
+    with pytest.raises(UsageError, match="cannot reach a Dask scheduler at tcp://127.0.0.1:9"):
+        check_split(build_family("odd-even-transposition", 32), engine="enumerate", runner=runner)
+    runner.close()

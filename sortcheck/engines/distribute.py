@@ -229,17 +229,30 @@ class DaskCluster:
     """
 
     def __init__(self, address: str, connect_seconds: float = 10.0):
-        try:
-            from distributed import Client
-        except ImportError:
-            raise UsageError("--cluster needs dask.distributed: pip install 'sortcheck[cluster]'",
-                             "--cluster") from None
-        try:
-            self.client = Client(address, timeout=connect_seconds)
-        except (OSError, TimeoutError) as error:
-            raise UsageError(f"cannot reach a Dask scheduler at {address}: {error}", "--cluster") from None
         self.address = address
         self.ran_on = f"dask {address}"
+        self.connect_seconds = connect_seconds
+        self._client = None
+        self._failure: UsageError | None = None
+
+    @property
+    def client(self):
+        """The Dask client, connected on first use (checks that do not split never pay for it)."""
+        if self._client is None:
+            if self._failure is not None:
+                raise self._failure
+            try:
+                from distributed import Client
+            except ImportError:
+                self._failure = UsageError("--cluster needs dask.distributed: pip install 'sortcheck[cluster]'",
+                                           "--cluster")
+                raise self._failure from None
+            try:
+                self._client = Client(self.address, timeout=self.connect_seconds)
+            except (OSError, TimeoutError, ValueError) as error:
+                self._failure = UsageError(f"cannot reach a Dask scheduler at {self.address}: {error}", "--cluster")
+                raise self._failure from None
+        return self._client
 
     def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
         from distributed import Variable, wait
@@ -278,7 +291,9 @@ class DaskCluster:
         return verdicts
 
     def close(self) -> None:
-        self.client.close()
+        if self._client is not None:
+            self._client.close()
+            self._client = None
 
     def __enter__(self):
         return self
