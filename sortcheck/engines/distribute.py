@@ -13,11 +13,15 @@ so pieces before it always finish and pieces after it are cancelled.
   itself: a piece that is no longer needed (a counterexample came from an
   earlier piece, or the deadline passed) is stopped by ending its process,
   which also stops a solver stuck in native code.
-* :class:`DaskCluster` submits them to a ``dask.distributed`` scheduler.
-  Dask cancels only pieces not yet started, so running pieces poll a
-  ``distributed.Variable`` holding the number of the first refuted piece
-  (through their budget's ``stopped`` condition, at most every
-  :data:`POLL_SECONDS`), and a piece whose worker dies is run again by Dask.
+* :class:`DaskCluster` submits them to a ``dask.distributed`` scheduler,
+  earlier pieces with higher priority.  Dask cancels only pieces not yet
+  started, so running pieces poll a ``distributed.Variable`` holding the
+  number of the first refuted piece (through their budget's ``stopped``
+  condition, at most every :data:`POLL_SECONDS`), and a piece whose worker
+  dies is run again by Dask.  Pieces run in a worker's thread: an engine
+  step that cannot be interrupted (building a large CNF) runs on until it
+  returns, though nobody waits for it.  Each worker repeats the engine's
+  preparation (for ``enumerate``, the reduction) once per check.
 """
 
 from __future__ import annotations
@@ -262,7 +266,7 @@ class DaskCluster:
         stop = Variable(stop_name, client=self.client)
         stop.set(len(jobs))
         futures = [self.client.submit(_dask_piece, engine, data, number, stop_name, pure=False,
-                                      key=f"sortcheck-piece-{run_id}-{number}")
+                                      key=f"sortcheck-piece-{run_id}-{number}", priority=len(jobs) - number)
                    for number, data in enumerate(jobs)]
         verdicts: list[Verdict | None] = [None] * len(jobs)
         first_refuted = len(jobs)
