@@ -115,8 +115,9 @@ def relabelling_allowed(prop: Property) -> bool:
 class _Search:
     """The channel words found so far and the blocks between them (mutable, inside :func:`lift_circuit`)."""
 
-    def __init__(self, circuit: GateCircuit, signatures: Signatures, order: BlockOrder, budget: Budget):
-        self.signatures, self.order, self.budget = signatures, order, budget
+    def __init__(self, circuit: GateCircuit, signatures: Signatures, order: BlockOrder, budget: Budget,
+                 distant: bool = False):
+        self.signatures, self.order, self.budget, self.distant = signatures, order, budget, distant
         self.gates = gate_map(circuit)
         self.words: list[Word] = [single(tuple(bit_name(w.name, i) for i in range(w.width))) for w in circuit.inputs]
         self.live: set[int] = set(range(len(self.words)))
@@ -168,7 +169,9 @@ class _Search:
 
         First the signals on no channel word that are functions of the pair's
         words alone (earliest first), then the bit at that place of one of the
-        pair's words, then any signal on no word.  None when a row has none.
+        pair's words, then (only in a ``distant`` search) any signal on no
+        word, whose proof then reaches back to the primary inputs.  None when
+        a row has none.
         """
         first, second = pair
         width = len(self.words[first])
@@ -181,7 +184,8 @@ class _Search:
             local = [signal for signal in fresh if is_local(self.gates, signal, cut, limit)]
             places = {(word, position % width) for word in pair}
             mine = [signal for signal in like if self.owner.get(signal) in places]
-            found = local + mine + [signal for signal in fresh if signal not in local]
+            distant = [signal for signal in fresh if signal not in local] if self.distant else []
+            found = local + mine + distant
             if not found:
                 return None
             options.append(found)
@@ -221,12 +225,17 @@ class _Search:
                         or np.array_equal(evaluate_local_rows(self.gates, signal, values, lanes), wanted[position])]
 
     def _lift_one(self, word: int, partners: list[int]) -> tuple[int, int, int, int] | None:
+        """Lift the block of ``word`` with one of ``partners`` whose outputs come first in the circuit, if any."""
+        found = []
         for pair, rows in self._candidates(word, partners):
             options = self._options(rows, pair)
             if options is not None:
                 self._screen(options, pair)
-            while options is not None and all(options):
-                picks = tuple(found[0] for found in options)
+                if all(options):
+                    found.append((max(self.signatures.index[bits[0]] for bits in options), pair, options))
+        for _, pair, options in sorted(found, key=lambda item: item[0]):
+            while all(options):
+                picks = tuple(bits[0] for bits in options)
                 if not self._has_new_logic(pair, picks):
                     break  # the pair is already in order, or its min/max would be computed elsewhere
                 check = self._prove(*pair, picks)
@@ -247,7 +256,8 @@ class _Search:
     def _add_block(self, pair: tuple[int, int], options: list[list], check: BlockCheck) -> tuple[int, int, int, int]:
         first, second = pair
         width = len(self.words[first])
-        bits = [(found[0], *self._equivalents(first, second, position, found[1:]))
+        sides = ({found[0] for found in options[width:]}, {found[0] for found in options[:width]})
+        bits = [(found[0], *self._equivalents(first, second, position, found[1:], sides[position >= width]))
                 for position, found in enumerate(options)]
         numbers = (first, second, len(self.words), len(self.words) + 1)
         for number, new in zip(numbers[2:], (tuple(bits[:width]), tuple(bits[width:]))):
@@ -269,13 +279,21 @@ class _Search:
         self.sat_calls += 1  # other leaves were free: try again with everything encoded from the inputs
         return prove_block(self.gates, a, b, outputs, self.order, self.budget, full_cone=True)
 
-    def _equivalents(self, first: int, second: int, position: int, candidates: list) -> list:
-        """The ``candidates`` (functions of the block's words) proved to be bit ``position`` of its min/max too."""
+    def _equivalents(self, first: int, second: int, position: int, candidates: list, other_side: set) -> list:
+        """The ``candidates`` proved to be bit ``position`` of the block's min/max too.
+
+        Only functions of the block's words that do not read the picks of the
+        other output word count: a signal computed from both outputs belongs
+        to a later block (a comparator on the same pair, say), not to this one.
+        """
         a, b = self.words[first], self.words[second]
         cut = signals_of(a) | signals_of(b)
         proved = []
         for signal in candidates[:MAX_EQUIVALENTS]:
             if signal in self.owner or not is_local(self.gates, signal, cut, LOCAL_GATES_PER_BIT * len(a)):
+                continue
+            found, _ = cone(self.gates, (signal,), cut)
+            if any(source in other_side for gate in found for source in gate.inputs):
                 continue
             check = prove_block(self.gates, a, b, (signal,), self.order, self.budget, self.proved_forms,
                                 positions=(position,))
@@ -400,8 +418,8 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
     prop = prop or circuit.claim or Sorts()
     order = _order_of(prop, circuit.width)
     signatures = signal_signatures(circuit)
-    search = _Search(circuit, signatures, order, budget)
     figures: dict[str, Any] = {"signature_seconds": time.perf_counter() - started, "gates": len(circuit.gates)}
+    search = _Search(circuit, signatures, order, budget)
     timed_out, network, channels_in, failure = False, None, None, None
     try:
         if isinstance(prop, PartialSort) and prop.stable:
@@ -411,11 +429,18 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
         else:
             search.run()
             network, channels_in, failure = _network_of(search, circuit, prop, budget)
+            if failure is not None:  # once more, letting block bits be computed anywhere
+                distant = _Search(circuit, signatures, order, budget, distant=True)
+                distant.run()
+                found = _network_of(distant, circuit, prop, budget)
+                if found[2] is None:
+                    search, (network, channels_in, failure) = distant, found
     except Interrupted:
         timed_out, failure = True, f"the time budget ran out after {len(search.blocks)} blocks"
     figures.update(seconds=time.perf_counter() - started, blocks=len(search.blocks), sat_calls=search.sat_calls,
                    shared_proofs=sum(block.how == "shared" for block in search.blocks),
-                   block_gates=sum(block.gates for block in search.blocks), rejected=len(search.rejected))
+                   block_gates=sum(block.gates for block in search.blocks), rejected=len(search.rejected),
+                   distant=search.distant)
     return Lifting(network, order, tuple(search.blocks), failure, tuple(search.rejected), channels_in, timed_out,
                    figures)
 
