@@ -3,8 +3,10 @@
 One rule per property kind (a refuted check is a result of its property's
 rule) and one for invalid netlists.  A refuted comparator network points at
 the comparator after which the two out-of-order values never move again
-(see :mod:`sortcheck.explain.diagnose`); an invalid netlist at the place the
-loader named; otherwise at the netlist's ``"property"`` line or the file.
+(see :mod:`sortcheck.explain.diagnose`); a refuted gate circuit at the first
+output word that holds a wrong value on the counterexample
+(:func:`wrong_output_word`); an invalid netlist at the place the loader named;
+otherwise at the netlist's ``"property"`` line or the file.
 """
 
 from __future__ import annotations
@@ -15,7 +17,9 @@ from typing import Any, Sequence
 
 from sortcheck import __version__
 from sortcheck.load.locate import line_of
-from sortcheck.model import PROPERTY_NAMES
+from collections import Counter
+
+from sortcheck.model import PROPERTY_NAMES, Median, Merges, PartialSort, Property, Selects, Sorts
 from sortcheck.report.results import FileResult
 
 SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
@@ -52,9 +56,54 @@ def comparator_place(data: dict, index: int) -> str | None:
     return None
 
 
+def wrong_output_word(prop: Property, inputs: list[int], outputs: list[int], width: int | None = None
+                      ) -> int | None:
+    """The first output that differs from what the property asks for on this input (None if none stands out).
+
+    >>> wrong_output_word(Sorts(), [3, 1, 2], [1, 3, 2]), wrong_output_word(Median(), [3, 1, 2], [3, 1, 2])
+    (1, 1)
+    >>> wrong_output_word(Selects(count=2), [5, 1, 2], [1, 5, 2])
+    1
+    """
+    if isinstance(prop, (Sorts, Merges)):
+        expected = sorted(inputs, reverse=isinstance(prop, Sorts) and prop.order == "descending")
+    elif isinstance(prop, Selects):
+        smallest = sorted(inputs)[:prop.count]
+        if prop.sorted:
+            expected = smallest
+        else:
+            left = Counter(smallest)
+            for index, value in enumerate(outputs[:prop.count]):
+                if left[value] == 0:
+                    return index
+                left[value] -= 1
+            return None
+    elif isinstance(prop, Median):
+        return (len(outputs) - 1) // 2
+    elif isinstance(prop, PartialSort) and width is not None:
+        shift = width - prop.key_bits
+        expected = sorted(inputs, key=lambda value: value >> shift)
+        keys = [value >> shift for value in expected]
+        for index, value in enumerate(outputs):
+            if value >> shift != keys[index]:
+                return index
+    else:
+        return None
+    for index, (value, wanted) in enumerate(zip(outputs, expected)):
+        if value != wanted:
+            return index
+    return None
+
+
 def _refuted_place(result: FileResult, data: dict) -> str | None:
     if result.diagnosis is not None and result.diagnosis.sealed_at is not None:
         return comparator_place(data, result.diagnosis.sealed_at)
+    example = result.verdict.counterexample if result.verdict else None
+    if result.kind == "gate-circuit" and example is not None and example.domain == "words":
+        width = (result.stats or {}).get("width")
+        index = wrong_output_word(result.prop, list(example.input), list(example.output), width)
+        if index is not None and index < len(data.get("outputs", [])):
+            return f"outputs[{index}]"
     return "property" if "property" in data else None
 
 
