@@ -20,7 +20,7 @@ from pysmt.smtlib.script import smtlibscript_from_formula
 from sortcheck.engines import Budget, Status, StopReason, check
 from sortcheck.engines.base import Options
 from sortcheck.engines.smt import MAX_CHANNELS, SmtEngine, default_width, encode, smtlib_text
-from sortcheck.model import ComparatorNetwork, GateCircuit, PartialSort, Sorts
+from sortcheck.model import ComparatorNetwork, GateCircuit, OutputWord, PartialSort, Sorts, Word
 from sortcheck.model.families import build_family
 from reference import breaks, run
 from strategies import nearly_sorting, properties_for
@@ -160,8 +160,10 @@ def test_timeout_gives_unknown():
 
 
 def test_refusals():
-    circuit = GateCircuit.__new__(GateCircuit)
-    assert ENGINE.refusal(circuit, Sorts(), Options())[0] == StopReason.UNSUPPORTED
+    mixed = GateCircuit((Word("a", 2), Word("b", 3)), (), (OutputWord("y0", ("a[0]", "a[1]")),
+                                                          OutputWord("y1", ("b[0]", "b[1]", "b[2]"))))
+    stop, reason = ENGINE.refusal(mixed, Sorts(), Options())  # gate circuits: tests/test_smt_gates.py
+    assert stop == StopReason.UNSUPPORTED and "widths 2, 3" in reason
     network = ComparatorNetwork(4, ((0, 1),))
     assert ENGINE.refusal(network, PartialSort(), Options())[0] == StopReason.UNSUPPORTED
     assert ENGINE.refusal(network, Sorts(), Options(width=0))[0] == StopReason.UNSUPPORTED

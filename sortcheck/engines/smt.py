@@ -1,6 +1,7 @@
-"""The ``smt`` engine: comparator networks checked on bit-vector words with an SMT solver.
+"""The ``smt`` engine: comparator networks and gate circuits checked on bit-vector words with an SMT solver.
 
-Every channel is a bit-vector of ``width`` bits and every comparator an
+Gate circuits are encoded gate by gate in :mod:`sortcheck.engines.smt_gates`;
+this module encodes comparator networks and holds the engine.  Every channel is a bit-vector of ``width`` bits and every comparator an
 if-then-else on one comparison (unsigned, or two's complement when the
 property is signed), so the solver reasons about words, not 0-1 vectors.
 The property's violation is stated on the output words and the solver looks
@@ -20,22 +21,22 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass
-from typing import Any, Callable
+from typing import Any
 
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
-from sortcheck.model import ComparatorNetwork, Median, Merges, Netlist, PartialSort, Property, Selects, Sorts
+from sortcheck.engines.smt_gates import MAX_GATES, check_circuit, circuit_refusal, circuit_smtlib_text
+from sortcheck.engines.smt_words import (SOLVER_ERRORS, WordOrder, cases_done, failure_text,
+                                         network_violation_cases, solver_name, unknown_reason, word_value,
+                                         words_text, _MISSING)
+from sortcheck.model import ComparatorNetwork, GateCircuit, Median, Merges, Netlist, PartialSort, Property, Selects, Sorts
 from sortcheck.model.semantics import violation
 
-try:
-    import z3
+if _MISSING is None:
     from pysmt.environment import Environment
-    from pysmt.exceptions import PysmtException, SolverReturnedUnknownResultError
+    from pysmt.exceptions import SolverReturnedUnknownResultError
     from pysmt.logics import QF_BV
     from pysmt.smtlib.script import smtlibscript_from_formula
     from pysmt.typing import BVType
-    _MISSING = None
-except ImportError as error:  # pragma: no cover - the test extras install both
-    _MISSING = f"the smt engine needs pysmt and z3-solver ({error})"
 
 #: Checks on more channels than this are refused.  Measured proofs of merge exchange
 #: networks (tests/benchmarks/bench_smt.py, 2 cores): 16 channels about 12 s, 20 channels
@@ -117,55 +118,6 @@ def order_facts(network: ComparatorNetwork) -> list[list[tuple[int, int]]]:
     return facts
 
 
-def _adjacent_disorders(less: Callable, words: tuple) -> list:
-    """One case per adjacent pair of ``words`` out of ascending order."""
-    return [less(words[i + 1], words[i]) for i in range(len(words) - 1)]
-
-
-def _ascending(manager: Any, less_equal: Callable, words: tuple) -> Any:
-    return manager.And([less_equal(words[i], words[i + 1]) for i in range(len(words) - 1)])
-
-
-def _count(manager: Any, conditions: list, bits: int) -> Any:
-    """How many of ``conditions`` hold, as a ``bits``-wide word (a sum of if-then-else terms)."""
-    one, zero = manager.BV(1, bits), manager.BV(0, bits)
-    total = zero
-    for condition in conditions:
-        total = manager.BVAdd(total, manager.Ite(condition, one, zero))
-    return total
-
-
-def _violation_cases(manager: Any, prop: Property, inputs: tuple, outputs: tuple, less: Callable,
-                     less_equal: Callable) -> list:
-    """The property's violation on words, as cases of a disjunction (see encodings/comparator-network-smt.md)."""
-    n = len(inputs)
-    if isinstance(prop, Sorts):
-        if prop.order == "descending":
-            return [less(outputs[i], outputs[i + 1]) for i in range(n - 1)]
-        return _adjacent_disorders(less, outputs)
-    if isinstance(prop, Merges):
-        m = prop.split
-        runs = manager.And(_ascending(manager, less_equal, inputs[:m]), _ascending(manager, less_equal, inputs[m:]))
-        return [manager.And(runs, case) for case in _adjacent_disorders(less, outputs)]
-    if isinstance(prop, Selects):
-        t = prop.count
-        # A comparator network only permutes its inputs (each comparator puts the same two words
-        # back), so the outputs are always a permutation and that part needs no formula: the
-        # first t outputs are then the t smallest exactly when none of them is larger than an
-        # output at a position >= t.
-        cases = [less(outputs[q], outputs[p]) for p in range(t) for q in range(t, n)]
-        return cases + (_adjacent_disorders(less, outputs[:t]) if prop.sorted else [])
-    if isinstance(prop, Median):
-        k = (n - 1) // 2
-        middle = outputs[k]
-        bits = n.bit_length()
-        smaller = _count(manager, [less(word, middle) for word in inputs], bits)
-        larger = _count(manager, [less(middle, word) for word in inputs], bits)
-        bound = manager.BV(k, bits)
-        return [manager.BVUGT(smaller, bound), manager.BVUGT(larger, bound)]
-    raise TypeError(f"the smt engine has no encoding for {prop.describe()}")
-
-
 def encode(network: ComparatorNetwork, prop: Property, width: int, environment: Any = None) -> Encoding:
     """Build the violation formula of ``prop`` on ``network`` over ``width``-bit words.
 
@@ -191,8 +143,8 @@ def encode(network: ComparatorNetwork, prop: Property, width: int, environment: 
     environment = environment or Environment()
     manager = environment.formula_manager
     before = len(manager.formulae)
-    less = manager.BVSLT if prop.signed else manager.BVULT
-    less_equal = manager.BVSLE if prop.signed else manager.BVULE
+    order = WordOrder(manager, prop.signed)
+    less, less_equal = order.less, order.less_equal
     inputs = tuple(manager.Symbol(f"x{i}", BVType(width)) for i in range(network.channels))
     wires = list(inputs)
     lemmas = []
@@ -201,12 +153,14 @@ def encode(network: ComparatorNetwork, prop: Property, width: int, environment: 
         wires[a], wires[b] = manager.Ite(swap, wires[b], wires[a]), manager.Ite(swap, wires[a], wires[b])
         lemmas += [less_equal(wires[i], wires[j]) for i, j in facts]
     outputs = tuple(wires)
-    cases = tuple(_violation_cases(manager, prop, inputs, outputs, less, less_equal))
+    cases = tuple(network_violation_cases(order, prop, inputs, outputs))
     return Encoding(inputs, outputs, cases, tuple(lemmas), width, prop.signed, len(manager.formulae) - before)
 
 
-def smtlib_text(network: ComparatorNetwork, prop: Property, width: int | None = None) -> str:
+def smtlib_text(network: Netlist, prop: Property, width: int | None = None) -> str:
     """The check as an SMT-LIB 2 script (``sat`` means refuted, ``unsat`` proved).
+
+    A gate circuit keeps its own width (``width`` must be None or that width).
 
     >>> text = smtlib_text(ComparatorNetwork(2, ((0, 1),)), Sorts())
     >>> text.splitlines()[:3] + text.splitlines()[-1:]
@@ -214,26 +168,16 @@ def smtlib_text(network: ComparatorNetwork, prop: Property, width: int | None = 
     """
     import io
 
+    if isinstance(network, GateCircuit):
+        if width is not None and width != network.width:
+            raise ValueError(f"a gate circuit is checked at its own width {network.width}, not {width}")
+        return circuit_smtlib_text(network, prop)
     environment = Environment()
     encoding = encode(network, prop, width or default_width(network.channels), environment)
     script = smtlibscript_from_formula(encoding.formula(environment.formula_manager), logic=QF_BV)
     stream = io.StringIO()
     script.serialize(stream, daggify=True)
     return stream.getvalue()
-
-
-def _word_value(unsigned: int, width: int, signed: bool) -> int:
-    """A model's bit pattern as the Python integer it stands for.
-
-    >>> _word_value(6, 3, False), _word_value(6, 3, True)
-    (6, -2)
-    """
-    return unsigned - (1 << width) if signed and unsigned >> (width - 1) else unsigned
-
-
-def _words_text(width: int, signed: bool) -> str:
-    kind = "two's complement" if signed else "unsigned"
-    return f"{width}-bit {kind} words (w = {width})"
 
 
 def _inputs_text(network: ComparatorNetwork, prop: Property) -> str:
@@ -251,7 +195,7 @@ def proof_scope(network: ComparatorNetwork, prop: Property, width: int) -> str:
     'every input on 4 channels of 2-bit unsigned words (w = 2): the'
     """
     n = network.channels
-    text = (f"{_inputs_text(network, prop)} of {_words_text(width, prop.signed)}: the SMT solver (z3) proved "
+    text = (f"{_inputs_text(network, prop)} of {words_text(width, prop.signed)}: the SMT solver (z3) proved "
             f"that none breaks the property")
     if width >= default_width(n):
         return text + (f"; {width}-bit words hold {n} distinct values, so any input of any ordered values has "
@@ -265,7 +209,9 @@ def proof_scope(network: ComparatorNetwork, prop: Property, width: int) -> str:
 class SmtEngine:
     """Bit-vector words, comparators as if-then-else, solved by z3 through pysmt.
 
-    ``cooperative`` is False: z3's timeout is passed on and usually holds, but
+    Gate circuits go to :mod:`sortcheck.engines.smt_gates` (every gate a
+    1-bit term, at the circuit's own width); comparator networks are encoded
+    here.  ``cooperative`` is False: z3's timeout is passed on and usually holds, but
     z3 checks it only at points of its own choosing (simplification and
     bit-blasting of a large formula can overrun it), so a hard deadline needs
     a process that can be ended.
@@ -278,21 +224,33 @@ class SmtEngine:
     ('refuted', 'words', 2)
     >>> SmtEngine().check(ComparatorNetwork(3, ((0, 1), (1, 2), (0, 1))), Sorts(), Budget()).status.value
     'proved'
+    >>> from sortcheck.model.lowering import lower_network
+    >>> circuit = lower_network(ComparatorNetwork(3, ((0, 1), (1, 2), (0, 1))), 2, style="mux")
+    >>> verdict = SmtEngine().check(circuit, Sorts(), Budget())
+    >>> verdict.status.value, verdict.figures["gates_encoded"], verdict.scope[:70]
+    ('proved', 21, 'sorts ascending: every input of 3 unsigned words of 2 bits is covered;')
+    >>> broken = lower_network(ComparatorNetwork(3, ((0, 1), (1, 2))), 2, style="mux")
+    >>> example = SmtEngine().check(broken, Sorts(), Budget()).counterexample
+    >>> sorted(example.input) != list(example.output), example.output == tuple(broken.evaluate(example.input))
+    (True, True)
     """
 
     name = "smt"
     cooperative = False
 
-    def __init__(self, max_channels: int = MAX_CHANNELS, max_width: int = MAX_WIDTH):
+    def __init__(self, max_channels: int = MAX_CHANNELS, max_width: int = MAX_WIDTH, max_gates: int = MAX_GATES):
         self.max_channels = max_channels
         self.max_width = max_width
+        self.max_gates = max_gates
 
     def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
                 ) -> tuple[StopReason, str] | None:
         if _MISSING is not None:  # pragma: no cover
             return StopReason.UNSUPPORTED, _MISSING
+        if isinstance(netlist, GateCircuit):
+            return circuit_refusal(netlist, prop, self.max_gates)
         if not isinstance(netlist, ComparatorNetwork):
-            return StopReason.UNSUPPORTED, "smt checks comparator networks only in this version"
+            return StopReason.UNSUPPORTED, "smt checks comparator networks and gate circuits"
         if isinstance(prop, PartialSort):
             return StopReason.UNSUPPORTED, "partial-sort applies to gate circuits only"
         if not isinstance(prop, (Sorts, Merges, Selects, Median)):
@@ -312,16 +270,16 @@ class SmtEngine:
         refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
             return refused
+        if isinstance(netlist, GateCircuit):
+            return check_circuit(self.name, netlist, prop, budget, options)
         network: ComparatorNetwork = netlist  # type: ignore[assignment]
         width = options.width or default_width(network.channels)
-        figures: dict[str, Any] = {"width": width, "signed": prop.signed, "solver": _solver_name(),
+        figures: dict[str, Any] = {"width": width, "signed": prop.signed, "solver": solver_name(),
                                    "comparators_encoded": network.size}
         try:
             return self._solve(network, prop, width, budget, figures, started)
-        except (PysmtException, z3.Z3Exception, MemoryError, RecursionError) as error:
-            reason = f"{type(error).__name__}: {error}".rstrip(": ")
-            return self._unknown(prop, figures, started, StopReason.UNSUPPORTED,
-                                 f"the SMT solver failed ({reason}); nothing is proved")
+        except SOLVER_ERRORS as error:
+            return self._unknown(prop, figures, started, StopReason.UNSUPPORTED, failure_text(error))
 
     def _solve(self, network: ComparatorNetwork, prop: Property, width: int, budget: Budget,
                figures: dict[str, Any], started: float) -> Verdict:
@@ -342,17 +300,17 @@ class SmtEngine:
             for number, selector in enumerate(selectors):
                 remaining = budget.remaining()
                 if remaining is not None and remaining <= 0:
-                    stop, scope = _unknown_reason("timeout")
-                    return self._unknown(prop, figures, started, stop, _cases_done(scope, number, selectors))
+                    stop, scope = unknown_reason("timeout")
+                    return self._unknown(prop, figures, started, stop, cases_done(scope, number, selectors))
                 if remaining is not None:
                     solver.z3.set("timeout", max(1, int(remaining * 1000)))
                 try:
                     found = solver.solve([selector])
                 except SolverReturnedUnknownResultError:
-                    stop, scope = _unknown_reason(solver.z3.reason_unknown())
-                    return self._unknown(prop, figures, started, stop, _cases_done(scope, number, selectors))
+                    stop, scope = unknown_reason(solver.z3.reason_unknown())
+                    return self._unknown(prop, figures, started, stop, cases_done(scope, number, selectors))
                 if found:
-                    words = tuple(_word_value(solver.get_py_value(symbol), width, prop.signed)
+                    words = tuple(word_value(solver.get_py_value(symbol), width, prop.signed)
                                   for symbol in encoding.inputs)
                     figures["solve_seconds"] = time.perf_counter() - solving
                     return self._refuted(network, prop, words, width, figures, started)
@@ -375,30 +333,7 @@ class SmtEngine:
         if reason is None:  # the word encoding and the reference semantics disagree
             raise AssertionError(f"internal error: smt input {words} was a model but meets {prop.describe()}")
         figures["seconds"] = time.perf_counter() - started
-        scope = (f"this input of {_words_text(width, prop.signed)} breaks the property: the network was run "
+        scope = (f"this input of {words_text(width, prop.signed)} breaks the property: the network was run "
                  f"on it and the outputs checked")
         return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope, figures["seconds"],
                        Counterexample(words, output, "words", reason), figures)
-
-
-def _cases_done(scope: str, done: int, cases: list) -> str:
-    return f"{scope} ({done} of {len(cases)} cases of the violation were excluded before it stopped)"
-
-
-def _unknown_reason(said: str) -> tuple[StopReason, str]:
-    """Stop reason and scope text for z3's reason for answering unknown.
-
-    >>> _unknown_reason("timeout")[0].value
-    'timeout'
-    """
-    if any(word in said for word in ("timeout", "canceled", "cancelled")):
-        return StopReason.TIMEOUT, "the SMT solver did not finish within the time budget; nothing is proved"
-    if "memory" in said or "memout" in said:
-        return StopReason.SIZE_LIMIT, f"the SMT solver ran out of memory ({said}); nothing is proved"
-    return StopReason.UNSUPPORTED, f"the SMT solver answered unknown ({said or 'no reason given'}); nothing is proved"
-
-
-def _solver_name() -> str:
-    import pysmt
-
-    return f"z3 {z3.get_version_string()} via pysmt {pysmt.__version__}"
