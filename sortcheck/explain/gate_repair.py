@@ -40,10 +40,10 @@ from pysat.solvers import Solver
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.explain.gate_flips import expected_raw, flip_counts, wrong_bits
-from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw
+from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw, to_values
 from sortcheck.explain.gate_repair_cnf import RepairCnf
 from sortcheck.load.locate import line_of
-from sortcheck.model import DEFAULT_PROPERTY, GateCircuit, Property, check_fits
+from sortcheck.model import DEFAULT_PROPERTY, GateCircuit, Merges, Property, check_fits
 
 
 @dataclass(frozen=True)
@@ -219,12 +219,24 @@ def _bank(circuit: GateCircuit, prop: Property, first: tuple[int, ...], failures
     """Failing copies (the counterexample first) and passing copies, from neighbours and random inputs."""
     neighbours = [first[:k] + (first[k] ^ (1 << i),) + first[k + 1:]
                   for k in range(circuit.words) for i in range(circuit.width)]
-    pool = list(dict.fromkeys(neighbours + random_raw_inputs(circuit.words, circuit.width, options.samples,
-                                                              options.seed)))
+    randoms = random_raw_inputs(circuit.words, circuit.width, options.samples, options.seed)
+    if isinstance(prop, Merges):  # only inputs with two ascending runs are in scope
+        randoms = [_as_runs(raw, prop, circuit.width) for raw in randoms]
+    pool = list(dict.fromkeys(neighbours + randoms))
     flags = failures.failing(pool)
     failing = [first] + [raw for raw, bad in zip(pool, flags) if bad and raw != first][:options.failing - 1]
     passing = [raw for raw, bad in zip(pool, flags) if not bad][:options.passing]
     return failing, passing
+
+
+def _as_runs(raw: tuple[int, ...], prop: Merges, width: int) -> tuple[int, ...]:
+    """The input with each of its two runs sorted (by value, signed or not), so a merge speaks about it.
+
+    >>> _as_runs((3, 1, 2, 0), Merges(split=2), 2)
+    (1, 3, 0, 2)
+    """
+    values = to_values(raw, width, prop.signed)
+    return to_raw(sorted(values[:prop.split]) + sorted(values[prop.split:]), width)
 
 
 def _candidates(circuit: GateCircuit, wrong: set[str]) -> list[str]:
