@@ -406,6 +406,21 @@ def _relabel(words: int, blocks: list[tuple[int, int, int, int]], targets: dict[
     return [rename[c] for c in channel], tuple(rename[i] for i in range(words))
 
 
+def channels_hold(channel: list[int], inputs: tuple[int, ...], blocks: list[tuple[int, int, int, int]],
+                  targets: dict[int, int]) -> bool:
+    """Whether ``channel`` puts input word ``i`` on ``inputs[i]``, keeps every block on its two channels and meets
+    ``targets``; then the network of the blocks computes the circuit (``encodings/structural-lifting.md``).
+
+    >>> channels_hold([0, 1, 1, 0], (0, 1), [(0, 1, 2, 3)], {3: 0}), channels_hold([0, 1, 1, 1], (0, 1), [(0, 1, 2, 3)], {})
+    (True, False)
+    """
+    if sorted(inputs) != list(range(len(inputs))) or any(channel[i] != c for i, c in enumerate(inputs)):
+        return False
+    if any(sorted((channel[a], channel[b])) != sorted((channel[low], channel[high])) for a, b, low, high in blocks):
+        return False
+    return all(channel[word] == target for word, target in targets.items())
+
+
 def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Budget = Budget()) -> Lifting:
     """Find the comparator network ``circuit`` is, block by proved block (see the module docstring).
 
@@ -460,6 +475,8 @@ def _network_of(search: _Search, circuit: GateCircuit, prop: Property, budget: B
             return None, None, (f"the outputs are the channel words in an order no comparator network on the input "
                                 f"positions gives, and {prop.describe()} depends on input positions")
         channel, channels_in = _relabel(circuit.words, blocks, targets)
+    if not channels_hold(channel, channels_in or tuple(range(circuit.words)), blocks, targets):
+        return None, None, "internal error: the channel assignment breaks its own conditions"
     comparators = tuple((channel[low], channel[high]) for _, _, low, high in blocks)
     network = ComparatorNetwork(circuit.words, comparators, name=f"lifted {circuit.name or 'circuit'}")
     return network, channels_in, None
