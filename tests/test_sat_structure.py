@@ -147,6 +147,14 @@ def test_mutations_of_pairwise_networks_up_to_20_channels(n):
         assert_right(broken, Sorts())
 
 
+@pytest.mark.parametrize("n", [8, 13, 16])
+def test_reversed_pairwise_networks_sort_descending_through_descending_sub_networks(n):
+    reversed_network = ComparatorNetwork(n, tuple((b, a) for a, b in pairwise(n).comparators))
+    verdict = assert_right(reversed_network, Sorts(order="descending"))
+    assert verdict.status == Status.PROVED and verdict.figures["sub_networks_proved"] >= 2
+    assert assert_right(reversed_network, Sorts()).status == Status.REFUTED
+
+
 @settings(max_examples=40, deadline=None)
 @given(st.integers(3, 9), st.data())
 def test_every_property_on_pairwise_and_mutated_pairwise(n, data):
