@@ -345,7 +345,7 @@ def _unexplained(search: _Search, circuit: GateCircuit, k: int, repeated: bool) 
         return f"output word {output.name!r} repeats a channel word another output already holds ({lifted})"
     found, _ = cone(search.gates, output.bits, set(search.owner))
     if not found:
-        return f"output word {output.name!r} mixes bits of different channel words ({lifted})"
+        return f"output word {output.name!r} is made of constants or of bits of different channel words ({lifted})"
     names = ", ".join(gate.out for gate in found[:3])
     return (f"output word {output.name!r} is not a channel word: {len(found)} gates before it are in no proved "
             f"min/max block (first: {names}); {lifted}" + (f", {len(search.rejected)} candidates failed their proof"
@@ -450,6 +450,8 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
                 found = _network_of(distant, circuit, prop, budget)
                 if found[2] is None:
                     search, (network, channels_in, failure) = distant, found
+            if failure is not None and not search.blocks:
+                failure += _other_order_hint(circuit, signatures, order, prop, budget)
     except Interrupted:
         timed_out, failure = True, f"the time budget ran out after {len(search.blocks)} blocks"
     figures.update(seconds=time.perf_counter() - started, blocks=len(search.blocks), sat_calls=search.sat_calls,
@@ -458,6 +460,18 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
                    distant=search.distant)
     return Lifting(network, order, tuple(search.blocks), failure, tuple(search.rejected), channels_in, timed_out,
                    figures)
+
+
+def _other_order_hint(circuit: GateCircuit, signatures: Signatures, order: BlockOrder, prop: Property,
+                      budget: Budget) -> str:
+    """A note when the circuit lifts with blocks of the other signedness (which says nothing about ``prop``)."""
+    other = dataclasses.replace(order, signed=not order.signed)
+    search = _Search(circuit, signatures, other, budget)
+    search.run()
+    if _network_of(search, circuit, prop, budget)[2] is not None:
+        return ""
+    return (f"; the circuit does lift with blocks comparing {other.describe()} words, but a verdict under that "
+            f"order says nothing about {prop.describe()}")
 
 
 def _network_of(search: _Search, circuit: GateCircuit, prop: Property, budget: Budget):
