@@ -132,7 +132,7 @@ def test_pairwise_networks_are_proved(n):
         assert verdict.figures["sub_networks_proved"] >= 2
 
 
-@pytest.mark.parametrize("n", [5, 8, 11, 12])
+@pytest.mark.parametrize("n", [5, 8, 11, 12, 16])
 def test_every_single_mutation_of_small_pairwise_networks(n):
     decided = set()
     for broken in mutations(pairwise(n)):
@@ -141,9 +141,9 @@ def test_every_single_mutation_of_small_pairwise_networks(n):
     assert (Status.REFUTED, "split") in decided  # some failures are traced back through the sub-networks
 
 
-@pytest.mark.parametrize("n", [16, 20])
+@pytest.mark.parametrize("n", [19, 20])
 def test_mutations_of_pairwise_networks_up_to_20_channels(n):
-    for broken in itertools.islice(mutations(pairwise(n)), 0, None, 9):
+    for broken in itertools.islice(mutations(pairwise(n)), n % 2, None, 5):  # every fifth, removed and reversed
         assert_right(broken, Sorts())
 
 
