@@ -39,9 +39,10 @@ from pysat.solvers import Solver
 
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
-from sortcheck.explain.gate_flips import expected_raw, flip_counts, wrong_bits
+from sortcheck.explain.gate_flips import wrong_bits
 from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw, to_values
-from sortcheck.explain.gate_repair_cnf import RepairCnf
+from sortcheck.explain.gate_repair_cnf import MAX_TABLE_INPUTS, RepairCnf
+from sortcheck.explain.gate_suspects import Suspect, rank_suspects
 from sortcheck.load.locate import line_of
 from sortcheck.model import DEFAULT_PROPERTY, GateCircuit, Merges, Property, check_fits
 
@@ -68,49 +69,6 @@ class GateChange:
     def to_json(self) -> dict[str, Any]:
         return {"kind": self.kind, "gate": self.gate, "index": self.index, "op": self.op,
                 "replaced": self.replaced, "line": self.line}
-
-
-@dataclass(frozen=True)
-class Suspect:
-    """A gate that may be at fault, with the evidence for it.
-
-    ``ops`` lists the other ops that make every copy right when this gate
-    alone takes them; ``function`` says some Boolean function of the gate's
-    inputs does; ``explains`` counts the failing copies that flipping the
-    gate's value alone would fix (None when not computed); ``distance`` is
-    the fewest gates from it to a wrong output bit.
-    """
-
-    gate: str
-    index: int
-    op: str
-    line: int | None
-    ops: tuple[str, ...]
-    function: bool
-    explains: int | None
-    distance: int | None
-
-    def rank_key(self) -> tuple:
-        return (not self.ops, not self.function, -(self.explains or 0),
-                self.distance if self.distance is not None else 1 << 30, self.index)
-
-    def describe(self) -> str:
-        where = f"gates[{self.index}]" + ("" if self.line is None else f", line {self.line}")
-        if self.ops:
-            evidence = f"as {' or '.join(self.ops)} it gets every tried input right"
-        elif self.function:
-            evidence = "some function of its inputs gets every tried input right (no single op does)"
-        else:
-            evidence = "no change of this gate alone gets every tried input right"
-        if self.explains is not None:
-            evidence += f"; flipping it fixes {self.explains} failing input(s)"
-        if self.distance is not None:
-            evidence += f"; {self.distance} gate(s) from a wrong output bit"
-        return f"{self.gate!r} ({self.op}, {where}): {evidence}"
-
-    def to_json(self) -> dict[str, Any]:
-        return {"gate": self.gate, "index": self.index, "op": self.op, "line": self.line, "ops": list(self.ops),
-                "function": self.function, "explains": self.explains, "distance": self.distance}
 
 
 @dataclass(frozen=True)
@@ -247,12 +205,6 @@ def _candidates(circuit: GateCircuit, wrong: set[str]) -> list[str]:
     return [gate.out for gate in circuit.gates if gate.out in cone]
 
 
-def _distances(circuit: GateCircuit, wrong: set[str]) -> dict[str, int]:
-    if not wrong:
-        return {}
-    return dict(nx.multi_source_dijkstra_path_length(circuit.graph.reverse(copy=False), wrong))
-
-
 def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Budget = Budget(),
                    max_changes: int = 1, options: GateRepairOptions = GateRepairOptions(),
                    text: str | None = None) -> GateRepairOutcome:
@@ -300,9 +252,9 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
     failures = CircuitFailures(circuit, prop)
     failing, passing = _bank(circuit, prop, to_raw(first.counterexample.input, width), failures, options)
     wrong = wrong_bits(circuit, prop, failing)
-    candidates = _candidates(circuit, wrong)
-    searched = (f"op changes of at most {max_changes} of the {len(candidates)} gates in the fan-in of the wrong "
-                f"output bits (of {len(circuit.gates)} gates)")
+    cone = _candidates(circuit, wrong)
+    candidates = cone if max_changes == 1 else [gate.out for gate in circuit.gates]
+    searched = _searched(circuit, cone, candidates, max_changes)
     search = _Search(circuit, prop, candidates, max_changes)
     try:
         for raw in failing + passing:
@@ -310,7 +262,7 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
         initial = len(failing) + len(passing)
         found = _cegar(circuit, prop, search, budget, max_changes, options, counts, index, lines)
         bank_size = len(search.cnf.copies)
-        suspects = _suspects(circuit, prop, search, failing + search.cnf.copies[initial:], wrong, budget,
+        suspects = rank_suspects(circuit, prop, search, cone, failing + search.cnf.copies[initial:], wrong, budget,
                              options, index, lines)
     finally:
         search.close()
@@ -321,12 +273,27 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
                        f"{prop.describe()}, proved by {verdict.engine}", searched, changes, fixed, verdict, suspects)
     if status == "budget":
         return outcome("budget", "the time budget ran out while searching op changes", searched, suspects=suspects)
+    if status == "rounds":
+        return outcome("budget", f"the search stopped after {options.max_rounds} candidates, each refuted by a full "
+                       "check", searched, suspects=suspects)
     if counts["undecided"]:
         return outcome("unknown", f"no op change of at most {max_changes} gate(s) was proved, and "
                        f"{counts['undecided']} passed every tried input but could not be decided, last: "
                        f"{counts['undecided_example']}", searched, suspects=suspects)
-    return outcome("none", f"no op change of at most {max_changes} gate(s) makes the circuit {prop.describe()}: "
-                   f"none gets all {bank_size} tried inputs right", searched, suspects=suspects)
+    return outcome("none", f"no op change of at most {max_changes} gate(s) makes the circuit {prop.describe()} "
+                   f"(searched: {searched}): none gets all {bank_size} tried inputs right", searched,
+                   suspects=suspects)
+
+
+def _searched(circuit: GateCircuit, cone: list[str], candidates: list[str], max_changes: int) -> str:
+    """Which op changes the search covers, in words."""
+    by_out = {gate.out: gate for gate in circuit.gates}
+    wide = sum(len(by_out[name].inputs) > MAX_TABLE_INPUTS for name in candidates)
+    kept = f"; {wide} gate(s) of more than {MAX_TABLE_INPUTS} inputs keep their op" if wide else ""
+    if max_changes == 1:
+        return (f"every op change of one of the {len(cone)} gates in the fan-in of the wrong output bits (of "
+                f"{len(circuit.gates)} gates; no other single gate can change those bits){kept}")
+    return f"every op change of at most {max_changes} of the {len(circuit.gates)} gates{kept}"
 
 
 def _cegar(circuit: GateCircuit, prop: Property, search: _Search, budget: Budget, max_changes: int,
@@ -361,33 +328,7 @@ def _cegar(circuit: GateCircuit, prop: Property, search: _Search, budget: Budget
             counts["undecided"] += 1
             counts["undecided_example"] = f"{'; '.join(c.describe() for c in changes)} ({verdict.scope})"
             cnf.builder.clauses.append([-cnf.choices[name][op] for name, op in chosen.items()])
-    return "budget", (), None, None
+    return "rounds", (), None, None
 
 
-def _suspects(circuit: GateCircuit, prop: Property, search: _Search, failing: list[tuple[int, ...]],
-              wrong: set[str], budget: Budget, options: GateRepairOptions, index: dict, lines: dict
-              ) -> list[Suspect]:
-    """Every candidate gate judged alone on all copies, ranked (see the module docstring)."""
-    cnf = search.cnf
-    one = search.at_most(1)
-    distances = _distances(circuit, wrong)
-    flips = flip_counts(circuit, prop, failing, list(cnf.gates), options.flip_evaluations)
-    found = []
-    for name, selector in cnf.selectors.items():
-        function = search.solve([selector, *one], budget) if not budget.expired() else None
-        ops: list[str] = []
-        if function:
-            blocked: list[int] = []
-            while search.solve([selector, cnf.ops_only, *one, *blocked], budget):
-                op = cnf.chosen_ops(search.solver.get_model())[name]
-                ops.append(op)
-                blocked.append(-cnf.choices[name][op])
-        gate = cnf.gates[name]
-        found.append(Suspect(name, index[name], gate.op, lines[name], tuple(sorted(ops)), bool(function),
-                             flips.get(name), distances.get(name)))
-    found.sort(key=Suspect.rank_key)
-    return found[:options.suspects]
-
-
-__all__ = ["GateChange", "GateRepairOptions", "GateRepairOutcome", "Suspect", "change_ops", "expected_raw",
-           "repair_circuit"]
+__all__ = ["GateChange", "GateRepairOptions", "GateRepairOutcome", "Suspect", "change_ops", "repair_circuit"]
