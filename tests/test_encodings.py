@@ -2,15 +2,19 @@
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
 import json
 from pathlib import Path
 
 import numpy as np
+import z3
 
 from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.smt import smtlib_text
 from sortcheck.load import parse_property
-from sortcheck.model import ComparatorNetwork, Merges
+from sortcheck.model import ComparatorNetwork, Gate, Merges, Sorts
+from sortcheck.model.lowering import lower_network
 from reference import breaks, run
 
 ENCODINGS = Path(__file__).resolve().parent.parent / "encodings"
@@ -91,3 +95,25 @@ def test_gate_threshold_conditions_match_their_golden_file():
     swapped = GateCircuit(circuit.inputs, circuit.gates, tuple(OutputWord(w.name, w.bits) for w in circuit.outputs[::-1]))
     with Solver(name="cadical195", bootstrap_with=gate_violation_cnf(swapped, Sorts())[0]) as solver:
         assert solver.solve()  # (max, min) does not
+
+
+GOLDEN_PAIR = lower_network(ComparatorNetwork(2, ((0, 1),)), 2, style="mux")
+
+
+def z3_answer(text):
+    solver = z3.Solver()
+    solver.add(z3.parse_smt2_string(text))
+    return solver.check()
+
+
+def test_gate_circuit_smt_script_matches_its_golden_file_and_z3_proves_it():
+    text = smtlib_text(GOLDEN_PAIR, Sorts())
+    assert (ENCODINGS / "gate-circuit-smt.golden.smt2").read_text() == text
+    assert len(GOLDEN_PAIR.gates) == 7
+    inputs = itertools.product(range(4), repeat=2)
+    assert all(GOLDEN_PAIR.evaluate(list(v)) == sorted(v) for v in inputs)  # it sorts, by sorted
+    assert z3_answer(text) == z3.unsat  # z3's own SMT-LIB parser, nothing of pysmt's conversion
+    gate = GOLDEN_PAIR.gates[1]  # the xor of the high bits becomes an xnor
+    broken = dataclasses.replace(GOLDEN_PAIR, gates=GOLDEN_PAIR.gates[:1] + (Gate(gate.out, "xnor", gate.inputs),)
+                                 + GOLDEN_PAIR.gates[2:])
+    assert z3_answer(smtlib_text(broken, Sorts())) == z3.sat
