@@ -312,7 +312,9 @@ def canonical_form(found: Sequence[Gate], leaves: Sequence[Signal], first: Word,
     for number, gate in enumerate(found):
         shape.append((gate.op, tuple(source if isinstance(source, int) else names[source] for source in gate.inputs)))
         names[gate.out] = ("g", number)
-    return tuple(shape), tuple(bit if isinstance(bit, int) else names[bit] for bit in outputs)
+    # Which variable stands for every bit of the two words (a signal may sit in both words).
+    words = tuple(bits[0] if isinstance(bits[0], int) else names[bits[0]] for bits in (*first, *second))
+    return tuple(shape), tuple(bit if isinstance(bit, int) else names[bit] for bit in outputs), words
 
 
 def signals_of(word: Word) -> set:
