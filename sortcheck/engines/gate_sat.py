@@ -46,6 +46,9 @@ from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
 
 #: Words of at most this many bits are asked one threshold at a time; wider ones with the threshold free.
+#: Measured on a loaded 2-core machine (per threshold / threshold free): counting sorter 16 x 2 bits 4.0 s /
+#: 9.8 s, 8 x 3 bits 0.34 s / 0.60 s; lowered merge exchange (and-or) 8 x 4 bits 4.7 s / 3.2 s, 8 x 6 bits
+#: 50 s / 30 s.
 PER_THRESHOLD_WIDTH = 3
 
 #: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
