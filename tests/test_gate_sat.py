@@ -20,6 +20,7 @@ from pysat.solvers import Solver
 from sortcheck.engines.base import Budget, Status, StopReason
 from sortcheck.engines.gate_sat import GateSatEngine
 from sortcheck.engines.gate_simulation import SimulateEngine
+from sortcheck.engines.pieces import combine
 from sortcheck.engines.gate_spec import gate_violation_cnf, miter_cnf, reference_sorter
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word)
@@ -235,6 +236,10 @@ def test_pieces_cover_the_check(circuit, prop):
     verdicts = [SAT_ONLY.check_piece(circuit, prop, piece, Budget()) for piece in pieces]
     assert all(v.status is Status.PROVED and "only thresholds" in v.scope for v in verdicts)
     assert sum(v.figures["thresholds_proved"] for v in verdicts) == 1 << circuit.width
+    whole = SAT_ONLY.whole_verdict(circuit, prop, combine("sat", prop, verdicts, "this process", 1.0))
+    assert whole.status is Status.PROVED and f"for all 2^{circuit.width} = " in whole.scope
+    assert whole.figures["thresholds"] == 1 << circuit.width
+    assert whole.figures["thresholds_proved"] == 1 << circuit.width
 
 
 def test_a_refuted_piece_carries_a_checked_counterexample():

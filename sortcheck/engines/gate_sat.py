@@ -54,6 +54,9 @@ PER_THRESHOLD_WIDTH = 3
 #: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
 PIECES = 4
 
+#: Figures every piece of one check has alike.
+SHARED_FIGURES = ("thresholds", "clauses", "variables", "circuit_nodes", "nodes_hashed_away", "all_nodes_hashed_away")
+
 #: Seconds between looks at the budget while the solver runs.
 POLL = 0.05
 
@@ -197,7 +200,22 @@ class GateSatEngine:
         low, high = int(piece["low"]), int(piece["high"])
         if not lowest <= low <= high <= highest:
             raise ValueError(f"threshold range {low}..{high} is not inside {lowest}..{highest}")
-        return self._run(circuit, prop, question, (low, high), budget, _Tally(), started)
+        verdict = self._run(circuit, prop, question, (low, high), budget, _Tally(), started)
+        verdict.figures["shared"] = list(SHARED_FIGURES)  # the same in every piece: not summed when combined
+        return verdict
+
+    def whole_verdict(self, netlist: Netlist, prop: Property, verdict: Verdict, options: Options = Options()
+                      ) -> Verdict:
+        """A combined verdict of every piece in the words of one check (proved ones; others are kept)."""
+        if verdict.status is not Status.PROVED or not isinstance(netlist, GateCircuit):
+            return verdict
+        figures = verdict.figures
+        scope = (f"{self._inputs_text(netlist, prop)} is covered: threshold SAT proved {prop.describe()} for all "
+                 f"2^{netlist.width} = {1 << netlist.width:,} thresholds, split into {figures.get('pieces')} pieces "
+                 f"of threshold ranges on {figures.get('ran_on')} ({figures.get('sat_calls')} SAT calls, "
+                 f"{self.solver})")
+        return Verdict(verdict.status, verdict.engine, prop, verdict.stop, scope, verdict.seconds, None, figures,
+                       verdict.engine_reason)
 
     # -- solving ----------------------------------------------------------------------------------------------
 

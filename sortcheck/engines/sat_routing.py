@@ -47,3 +47,8 @@ class RoutedSatEngine:
     def check_piece(self, netlist: Netlist, prop: Property, piece: dict, budget: Budget,
                     options: Options = Options()) -> Verdict:
         return self.engine_for(netlist).check_piece(netlist, prop, piece, budget, options)
+
+    def whole_verdict(self, netlist: Netlist, prop: Property, verdict: Verdict, options: Options = Options()
+                      ) -> Verdict:
+        engine = self.engine_for(netlist)
+        return engine.whole_verdict(netlist, prop, verdict, options) if hasattr(engine, "whole_verdict") else verdict
