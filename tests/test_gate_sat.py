@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import itertools
 import time
+from pathlib import Path
 
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
@@ -22,6 +23,7 @@ from sortcheck.engines.gate_sat import GateSatEngine
 from sortcheck.engines.gate_simulation import SimulateEngine
 from sortcheck.engines.pieces import combine
 from sortcheck.engines.gate_spec import gate_violation_cnf, miter_cnf, reference_sorter
+from sortcheck.load import read_netlist
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word)
 from sortcheck.model.counting import counting_sorter
@@ -297,3 +299,20 @@ def test_miter_against_the_reference_sorter():
     assert satisfiable(miter_cnf(mutate(counting_sorter(4, 2), "swap", 0, 1), reference_circuit)[0])
     with pytest.raises(ValueError):
         miter_cnf(counting_sorter(4, 2), reference_sorter(3, 2))
+
+
+# --- the corpus ---------------------------------------------------------------------------------------------
+
+CORPUS = Path(__file__).resolve().parent.parent / "corpus"
+GATE_FILES = [line.split() for line in (CORPUS / "expected-verdicts.txt").read_text(encoding="utf-8").splitlines()
+              if line.strip() and not line.startswith("#")]
+
+
+@pytest.mark.parametrize("expected, relative", [(v, p) for v, p in GATE_FILES
+                                                if p.startswith(("gates/", "broken/compare", "compare"))])
+def test_corpus_gate_circuits_get_their_listed_verdicts_by_sat_alone(expected, relative):
+    circuit = read_netlist(str(CORPUS / relative))
+    if not isinstance(circuit, GateCircuit):
+        pytest.skip("a comparator network")
+    verdict = SAT_ONLY.check(circuit, circuit.claim or Sorts(), Budget.of(60))
+    assert verdict.status.value == expected
