@@ -70,6 +70,37 @@ def flipped_gate(circuit: GateCircuit, out: str, op: str, name: str, description
     return GateCircuit(circuit.inputs, gates, circuit.outputs, name, description, circuit.claim)
 
 
+def middle_flip(circuit: GateCircuit, name: str) -> GateCircuit:
+    """``circuit`` with the first gate past its middle that has a twin op (and/or, xor/xnor) turned into it."""
+    twin = {"and": "or", "or": "and", "xor": "xnor", "xnor": "xor", "nand": "nor", "nor": "nand"}
+    position = next(i for i in range(len(circuit.gates) // 2, len(circuit.gates)) if circuit.gates[i].op in twin)
+    gate = circuit.gates[position]
+    op = twin[gate.op]
+    return flipped_gate(circuit, gate.out, op, name, f"{circuit.description or circuit.name} Gate {gate.out!r} "
+                        f"(gates[{position}]) turned from {gate.op} into {op}.")
+
+
+def gate_conformance(merger: ComparatorNetwork, median: ComparatorNetwork, select: ComparatorNetwork
+                     ) -> dict[str, GateCircuit]:
+    """Gate circuits for every property in two independent lowerings and the counting family, with mutants."""
+    files: dict[str, GateCircuit] = {}
+    me6 = build_family("merge-exchange", 6)
+    cases = {
+        "merge-exchange-6-w4-and-or": lower_network(me6, 4, style="and-or"),
+        "merge-exchange-6-w4-mux-signed": lower_network(me6, 4, style="mux", signed=True),
+        "odd-even-merger-8-w3-mux": lower_network(merger, 3, style="mux"),
+        "median-of-9-w3-and-or": lower_network(median, 3, style="and-or"),
+        "smallest-3-of-12-w2-mux": lower_network(select, 2, style="mux"),
+        "merge-exchange-5-w5-key2-and-or": lower_network(build_family("merge-exchange", 5), 5, style="and-or",
+                                                         key_bits=2),
+        "counting-5-w3": counting_sorter(5, 3),
+    }
+    for name, circuit in cases.items():
+        files[f"gates/{name}.json"] = circuit
+        files[f"gates/broken/{name}-flipped-gate.json"] = middle_flip(circuit, f"{name}-flipped-gate")
+    return files
+
+
 def corpus() -> dict[str, ComparatorNetwork | GateCircuit]:
     """Every corpus file by its path relative to this folder."""
     files: dict[str, ComparatorNetwork | GateCircuit] = {}
@@ -90,6 +121,7 @@ def corpus() -> dict[str, ComparatorNetwork | GateCircuit]:
     files["gates/merge-exchange-4-w8-mux.json"] = lower_network(build_family("merge-exchange", 4), 8, style="mux")
     files["gates/counting-6-w2.json"] = counting_sorter(6, 2)
     files["gates/bitonic-4-w3-and-or-signed.json"] = lower_network(build_family("bitonic", 4), 3, signed=True)
+    files.update(gate_conformance(merger, files["median-of-9.json"], files["smallest-3-of-12.json"]))
     files["broken/compare-and-swap-2x2-flipped-gate.json"] = flipped_gate(
         compare_and_swap_circuit(), "low_less", "or", "compare-and-swap-2x2-flipped-gate",
         "The 2x2 compare-and-swap with its low-bit less-than gate turned from and into or.")
@@ -111,7 +143,7 @@ def corpus() -> dict[str, ComparatorNetwork | GateCircuit]:
 def main() -> None:
     for relative, netlist in corpus().items():
         path = HERE / relative
-        path.parent.mkdir(exist_ok=True)
+        path.parent.mkdir(parents=True, exist_ok=True)
         write_netlist(netlist, path)
         print(f"wrote {path.relative_to(HERE.parent)}")
 

@@ -351,7 +351,7 @@ def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "a
             verdict = chosen.check(netlist, prop, budget, options)
         else:
             verdict = check_in_child(chosen, netlist, prop, budget, options)
-        verdict = verdict.with_choice(reason, time.perf_counter() - started)
+        verdict = verdict.with_choice(verdict.engine_reason or reason, time.perf_counter() - started)
         where = runner.ran_on if isinstance(runner, InProcess) else "this process"
         return _with_figures(verdict, {"ran_on": where, "pieces": 1})
     return run_pieces(chosen, netlist, prop, pieces, budget, options, runner).with_choice(
