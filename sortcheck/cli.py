@@ -20,6 +20,7 @@ from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
 from sortcheck.explain.draw import draw_network, parse_input_values
+from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
 from sortcheck.load import dump_netlist, parse_property, read_netlist, write_netlist
@@ -347,24 +348,34 @@ def _network_of(path: str, command: str) -> ComparatorNetwork:
 
 
 def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    network = _network_of(args.path, "draw")
-    prop = parse_property(args.property) if args.property else network.claim or DEFAULT_PROPERTY
-    check_fits(prop, network, args.path, where="--property" if args.property else "property")
+    netlist = read_netlist(args.path)
+    prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
+    check_fits(prop, netlist, args.path, where="--property" if args.property else "property")
+    positions = netlist.channels if isinstance(netlist, ComparatorNetwork) else netlist.words
     diagnosis = None
     if args.input:
         try:
-            values = parse_input_values(args.input, network.channels)
+            values = parse_input_values(args.input, positions)
         except ValueError as error:
             raise UsageError(str(error), "--input") from None
-        if set(values) <= {0, 1}:
-            diagnosis = diagnose_network(network, prop, values)
+        if isinstance(netlist, ComparatorNetwork) and set(values) <= {0, 1}:
+            diagnosis = diagnose_network(netlist, prop, values)
     else:
         result = check_file(args.path, prop if args.property else None, timeout=args.timeout)
         example = result.verdict.counterexample if result.verdict else None
         values = example.input if example is not None else None
         diagnosis = result.diagnosis
-    _write(args.output, draw_network(network, values, diagnosis, prop=prop))
-    shown = "" if values is None else f" with input {' '.join(map(str, values))}"
+    title, notes, shown = None, [], "" if values is None else f" with input {' '.join(map(str, values))}"
+    if isinstance(netlist, GateCircuit):
+        view = lifted_view(netlist, prop, values, Budget.of(args.timeout), args.path)
+        network, values, diagnosis, prop = view.network, view.values, view.diagnosis, view.prop
+        title = f"{netlist.name or Path(args.path).name}, lifted to a comparator network"
+        notes = [f"A gate circuit of {netlist.words} words of {netlist.width} bits whose {len(view.lifting.blocks)} "
+                 f"compare-and-swap blocks were proved to be min/max ({view.lifting.order.describe()}); the values "
+                 "are the words' order keys."]
+    else:
+        network = netlist
+    _write(args.output, draw_network(network, values, diagnosis, title, prop=prop, notes=notes))
     print(f"wrote {args.output}: {network.channels} channels, {network.size} comparators{shown}", file=stderr)
     return EXIT_PROVED
 

@@ -303,7 +303,7 @@ def _add(parent: ET.Element, tag: str, text: str | None = None, **attributes) ->
 
 
 def draw_network(network: ComparatorNetwork, values: Sequence | None = None, diagnosis: Diagnosis | None = None,
-                 title: str | None = None, *, prop: Property | None = None) -> str:
+                 title: str | None = None, *, prop: Property | None = None, notes: Sequence[str] = ()) -> str:
     """An SVG document of the network, optionally run on one input and with a diagnosis of it.
 
     Parameters
@@ -320,6 +320,8 @@ def draw_network(network: ComparatorNetwork, values: Sequence | None = None, dia
         their order was sealed are marked, and a caption says what went wrong.
     title : str or None
         The heading and the document's ``<title>``; by default the network's name.
+    notes : sequence of str
+        Sentences added to the caption (what the drawing stands for, say).
     prop : Property or None
         The property the wrong outputs are judged by; by default the one the
         network claims, else sorting ascending.
@@ -370,7 +372,7 @@ def draw_network(network: ComparatorNetwork, values: Sequence | None = None, dia
     if states is not None:
         wrong = wrong_outputs(prop, states[0], states[-1])
         _draw_values(root, geometry, states, wrong, set(diagnosis.outputs) if diagnosis else set())
-    lines = _caption_lines(network, geometry, states, swapped, wrong, diagnosis, prop)
+    lines = [*notes, *_caption_lines(network, geometry, states, swapped, wrong, diagnosis, prop)]
     if crossings:
         lines.append(f"Equal values are followed in input order, so a path may change channel where a comparator "
                      f"meets two equal values without swapping them "
