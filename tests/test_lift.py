@@ -21,8 +21,7 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 from sortcheck.engines.base import Budget, Status, StopReason
 from sortcheck.engines.lift import LiftEngine, lift_circuit
 from sortcheck.load import parse_property
-from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort,
-                             Selects, Sorts, in_layer_order)
+from sortcheck.model import ComparatorNetwork, Gate, Median, Merges, PartialSort, Selects, Sorts, in_layer_order
 from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import bitonic, merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
