@@ -20,7 +20,8 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 
 from sortcheck.engines import Budget, Status, StopReason
 from sortcheck.engines.base import Options
-from sortcheck.engines.smt import SmtEngine
+from sortcheck.engines.smt import SmtEngine, smtlib_text
+from sortcheck.engines.smt_gates import MAX_GATES
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word)
 from sortcheck.model.counting import counting_sorter
@@ -92,7 +93,7 @@ def reference_holds(circuit, prop):
 
 
 def evaluate_one(circuit, values):
-    width, words = circuit.inputs[0].width, len(circuit.inputs)
+    width = circuit.inputs[0].width
     index = sum((value % (1 << width)) << (width * i) for i, value in enumerate(values))
     return [int(value) for value in evaluate_everywhere(circuit)[1][index]]
 
@@ -295,6 +296,16 @@ def test_refusals_of_gate_circuits():
     assert ENGINE.refusal(circuit, PartialSort(key_bits=2), Options()) is None
     verdict = SmtEngine(max_gates=10).check(circuit, Sorts(), Budget(), Options())
     assert verdict.status == Status.UNKNOWN and verdict.scope.startswith("nothing was checked")
+    large = lower_network(merge_exchange(16), 8, style="and-or")
+    stop, reason = ENGINE.refusal(large, Sorts(), Options())
+    assert len(large.gates) > MAX_GATES and stop == StopReason.SIZE_LIMIT and f"{MAX_GATES:,} gates" in reason
+
+
+def test_smtlib_text_keeps_a_circuits_own_width():
+    circuit = lower_network(SORTER_3, 2, style="mux")
+    assert "(declare-fun x2 () (_ BitVec 2))" in smtlib_text(circuit, Sorts(), width=2)
+    with pytest.raises(ValueError, match="own width 2"):
+        smtlib_text(circuit, Sorts(), width=3)
 
 
 def test_a_tiny_budget_gives_unknown():

@@ -11,9 +11,9 @@ terms and why the cases are right.
 
 Each case goes to a fresh solver without assumptions: z3 then bit-blasts it
 with its dedicated bit-vector tactic, which on lowered sorters of 8 words of
-4 bits was about 7 times faster than one incremental solver asked case by
-case under assumptions, and about 70 times faster than the whole disjunction
-at once (measured under load; see :data:`MAX_GATES`).
+4 bits (mux style) took 2.7 s for all cases, against 18 s for one incremental
+solver asked case by case under assumptions and 210 s for the whole
+disjunction at once (2 cores under load; see :data:`MAX_GATES`).
 """
 
 from __future__ import annotations
@@ -38,10 +38,13 @@ if _MISSING is None:
     from pysmt.smtlib.script import smtlibscript_from_formula
     from pysmt.typing import BVType
 
-#: Circuits with more gates are refused (SIZE_LIMIT).  Measured proofs (tests/benchmarks/bench_smt_gates.py,
-#: 2 cores under a load of 3 to 7): lowered merge exchange 8 x 4, 285 gates (mux) in about 3 s and
-#: 931 (and-or) in about 5 s; 8 x 8 and 16 x 8 run past 60 s; counting sorters 8 x 2 and 8 x 3 in under 2 s.
-MAX_GATES = 20_000
+#: Circuits with more gates are refused (SIZE_LIMIT).  Measured (tests/benchmarks/bench_smt_gates.py, sorts,
+#: 2 cores under a load of 4 to 8, so rough): proved within seconds: counting sorters 8 x 2 (163 gates, 0.1 s)
+#: and 8 x 3 (423, 0.4 s), lowered merge exchange 8 x 4 in the mux (285, 1.6 s) and and-or (931, 3.5 s)
+#: styles; not proved within 90 s: merge exchange 8 x 8 mux (589) and and-or (1,919), 16 x 8 mux (1,953).
+#: Refutations of one flipped gate vary: 0.3 s (8 x 8 mux), 51 s (8 x 8 and-or), 5.6 s (16 x 8 and-or,
+#: 6,363 gates), none within 90 s (16 x 8 mux).  The limit is about twice the largest circuit proved.
+MAX_GATES = 2_000
 
 #: Circuits with more input words are refused: the cases hold about 2 n^2 word comparisons.
 MAX_WORDS = 64
@@ -151,7 +154,7 @@ def circuit_refusal(circuit: GateCircuit, prop: Property, max_gates: int = MAX_G
         return StopReason.UNSUPPORTED, error.message
     if len(circuit.gates) > max_gates:
         return StopReason.SIZE_LIMIT, (f"{len(circuit.gates):,} gates are beyond smt's limit of {max_gates:,} "
-                                       f"gates for gate circuits")
+                                       f"gates for gate circuits (z3 did not finish larger ones within minutes)")
     if circuit.words > MAX_WORDS:
         return StopReason.SIZE_LIMIT, f"{circuit.words} input words are beyond smt's limit of {MAX_WORDS}"
     return None
