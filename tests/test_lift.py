@@ -246,7 +246,12 @@ def test_unsigned_blocks_are_not_lifted_for_a_signed_property():
     lifting = lift_circuit(circuit, Sorts(signed=True))
     assert not lifting.lifted and "does lift with blocks comparing unsigned words" in lifting.failure
     assert circuit_breaks(circuit, Sorts(signed=True))
-    assert LiftEngine().check(circuit, Sorts(signed=True), Budget()).status is not Status.PROVED
+    # Not lifted, so the engine tries sampled inputs, which find a failure: recomputed here, judged by sorted.
+    verdict = LiftEngine().check(circuit, Sorts(signed=True), Budget())
+    assert verdict.status is Status.REFUTED and "does not lift" in verdict.scope
+    example = verdict.counterexample
+    assert [as_signed(v, 3) for v in evaluate(circuit, [v % 8 for v in example.input])] == list(example.output)
+    assert breaks(Sorts(), list(example.input), list(example.output))
 
 
 def mutants(circuit, step=1):
@@ -291,11 +296,14 @@ def test_a_spent_budget_stops_lifting():
     assert verdict.status is Status.UNKNOWN and verdict.stop is StopReason.TIMEOUT
 
 
-def test_the_engine_refuses_networks():
+def test_the_engine_refuses_networks_and_circuits_below_its_size():
     engine = LiftEngine()
     reason = engine.refusal(merge_exchange(4), Sorts())
     assert reason is not None and reason[0] is StopReason.UNSUPPORTED
     assert engine.check(merge_exchange(4), Sorts(), Budget()).status is Status.UNKNOWN
+    circuit = lower_network(merge_exchange(4), 3, style="mux")  # 12 input bits
+    assert LiftEngine(min_input_bits=13).refusal(circuit, Sorts())[0] is StopReason.UNSUPPORTED
+    assert LiftEngine(min_input_bits=12).refusal(circuit, Sorts()) is None
 
 
 # --- random networks and styles ------------------------------------------------------------------

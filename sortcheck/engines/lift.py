@@ -42,7 +42,7 @@ import numpy as np
 from pysat.formula import IDPool
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict, refused_verdict
-from sortcheck.engines.gate_simulation import counterexample_of
+from sortcheck.engines.gate_simulation import counterexample_of, quick_refute
 from sortcheck.engines.lift_blocks import (SEED, Bits, BlockCheck, BlockOrder, Signatures, Word, cone, evaluate_local,
                                            evaluate_local_rows, gate_map, is_local, min_max_rows, min_max_values,
                                            prove_block, prove_same, signal_signatures, signals_of, simulated_inputs,
@@ -574,10 +574,19 @@ def lifted_verdict(lifting: Lifting, circuit: GateCircuit, prop: Property, budge
 class LiftEngine:
     """Gate circuits lifted to comparator networks block by proved block, then checked as networks.
 
+    A circuit that does not lift is tried on corner-case and random inputs
+    (:func:`sortcheck.engines.gate_simulation.quick_refute`), which can only
+    refute; otherwise the verdict is ``unknown`` and says why it did not lift.
+
     Parameters
     ----------
     network_engine : str
         The engine for the lifted network (``auto``: enumerate, else sat).
+    min_input_bits : int
+        Circuits with fewer input bits (words times width) are refused: an
+        engine that simulates every input is the better choice there.
+    samples : int
+        Random inputs tried on a circuit that does not lift.
 
     Examples
     --------
@@ -591,8 +600,8 @@ class LiftEngine:
     name = "lift"
     cooperative = True
 
-    def __init__(self, network_engine: str = "auto"):
-        self.network_engine = network_engine
+    def __init__(self, network_engine: str = "auto", min_input_bits: int = 0, samples: int = 1 << 14):
+        self.network_engine, self.min_input_bits, self.samples = network_engine, min_input_bits, samples
 
     def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
                 ) -> tuple[StopReason, str] | None:
@@ -604,6 +613,10 @@ class LiftEngine:
             return StopReason.UNSUPPORTED, error.message
         if isinstance(prop, PartialSort) and prop.stable:
             return StopReason.UNSUPPORTED, "lift does not take stable partial sorts (they depend on the tie rule)"
+        bits = netlist.words * netlist.width
+        if bits < self.min_input_bits:
+            return StopReason.UNSUPPORTED, (f"the circuit has {bits} input bits, few enough to simulate every input; "
+                                            f"lift takes circuits of {self.min_input_bits} input bits or more")
         return None
 
     def check(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()) -> Verdict:
@@ -617,7 +630,15 @@ class LiftEngine:
             return lifted_verdict(lifting, circuit, prop, budget, self.network_engine, started)
         figures = {"lift": lifting.figures, "blocks": [block.to_json() for block in lifting.blocks],
                    "rejected": [list(pair) for pair, _ in lifting.rejected]}
-        stop = StopReason.TIMEOUT if lifting.timed_out else StopReason.UNSUPPORTED
-        scope = (f"nothing was proved: the circuit does not lift to a comparator network with blocks comparing "
-                 f"{lifting.order.describe()} words: {lifting.failure}")
-        return Verdict(Status.UNKNOWN, self.name, prop, stop, scope, time.perf_counter() - started, None, figures)
+        not_lifted = (f"the circuit does not lift to a comparator network with blocks comparing "
+                      f"{lifting.order.describe()} words: {lifting.failure}")
+        found = None if lifting.timed_out else quick_refute(circuit, prop, budget, self.samples)
+        seconds = time.perf_counter() - started
+        if found is not None:
+            scope = (f"{not_lifted}; this input of {circuit.words} words of {circuit.width} bits, found among "
+                     f"corner-case and random inputs and recomputed with the circuit, breaks the property")
+            return Verdict(Status.REFUTED, self.name, prop, StopReason.COUNTEREXAMPLE, scope, seconds, found, figures)
+        stop = StopReason.TIMEOUT if lifting.timed_out or budget.expired() else StopReason.UNSUPPORTED
+        tried = "" if lifting.timed_out else f"; {self.samples:,} random and corner-case inputs passed"
+        return Verdict(Status.UNKNOWN, self.name, prop, stop, f"nothing was proved: {not_lifted}{tried}", seconds,
+                       None, figures)
