@@ -332,3 +332,12 @@ def test_an_unreachable_scheduler_is_a_usage_error_only_when_pieces_need_it(spli
     with pytest.raises(UsageError, match="cannot reach a Dask scheduler at tcp://127.0.0.1:9"):
         check_split(build_family("odd-even-transposition", 32), engine="enumerate", runner=runner)
     runner.close()
+
+
+def test_a_piece_of_another_layout_is_refused_not_misread(split_everything):
+    split_everything(4)
+    network = build_family("merge-exchange", 22)
+    piece = dict(UNREDUCED.pieces(network, Sorts())[0], of=63)  # as if another version had reduced differently
+    verdict = UNREDUCED.check_piece(network, Sorts(), piece, Budget(), Options())
+    assert verdict.status == Status.UNKNOWN and verdict.stop.value == "unsupported"
+    assert "nothing was checked" in verdict.scope
