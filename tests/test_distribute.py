@@ -216,7 +216,8 @@ def test_a_killed_local_worker_is_replaced_and_the_check_completes(split_everyth
         children = []
         while thread.is_alive() and not children:
             time.sleep(0.05)
-            children = psutil.Process().children()
+            me = psutil.Process()  # forked workers share this process's command line (Dask's are spawned)
+            children = [child for child in me.children() if child.cmdline() == me.cmdline()]
         time.sleep(0.1)
         assert thread.is_alive(), "the check ended before a worker could be killed"
         os.kill(children[0].pid, signal.SIGKILL)
