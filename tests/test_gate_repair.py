@@ -212,3 +212,18 @@ def test_the_repair_command_reports_json_with_lines_and_exit_statuses(tmp_path, 
     good.write_text(dump_netlist(circuit), encoding="utf-8")
     assert main(["repair", str(good)]) == 0
     assert "already meets" in capsys.readouterr().out
+
+
+def test_a_circuit_beyond_exhaustive_simulation_is_repaired_only_when_a_complete_engine_proves_it():
+    # 6 words of 5 bits: 30 input bits, beyond exhaustive simulation.  A candidate that passes every tried input
+    # is offered as a repair only if the check proves it; otherwise the outcome is unknown, naming it, with suspects.
+    circuit = build_circuit("merge-exchange", 6, 5, style="mux")
+    gate = circuit.gates[len(circuit.gates) // 2]
+    mutant = change_ops(circuit, {gate.out: FLIP[gate.op]})
+    outcome = repair_circuit(mutant, Sorts(), Budget.of(120))
+    assert gate.out in [suspect.gate for suspect in outcome.suspects[:3]]
+    if outcome.status == "repaired":
+        assert outcome.verified and outcome.verdict.status.value == "proved"
+    else:
+        assert outcome.status == "unknown" and not outcome.verified and outcome.network is None
+        assert "could not be decided" in outcome.reason and "change gate" in outcome.reason
