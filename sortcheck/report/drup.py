@@ -134,35 +134,39 @@ def _literal(token: str, line: int, what: str) -> int:
     return int(token)
 
 
+def _code(literal: int) -> int:
+    """Literal ``v`` as ``2v``, ``-v`` as ``2v + 1``: negation is ``code ^ 1`` and codes index lists."""
+    return 2 * literal if literal > 0 else 1 - 2 * literal
+
+
 class _Database:
-    """Clauses with two watched literals, and the top-level trail unit propagation forces."""
+    """Clauses with two watched literals, and the top-level trail unit propagation forces.
+
+    Literals are codes (:func:`_code`); ``truth[code]`` is 1 when the literal
+    is true, -1 when false, 0 when unassigned.
+    """
 
     def __init__(self, variables: int):
-        self.value = [0] * (variables + 1)  # +1 true, -1 false, 0 unassigned
-        self.reason = [-1] * (variables + 1)
+        self.truth = [0] * (2 * variables + 2)
+        self.reason = [-1] * (2 * variables + 2)  # by the code of the true literal
         self.trail: list[int] = []
         self.head = 0
         self.clauses: list[list[int]] = []
         self.alive: list[bool] = []
-        self.watches: dict[int, list[int]] = {}
+        self.watches: list[list[int]] = [[] for _ in range(2 * variables + 2)]
         self.by_key: dict[tuple[int, ...], list[int]] = {}
         self.contradictory = False
 
-    def _true(self, literal: int) -> bool:
-        return self.value[abs(literal)] == (1 if literal > 0 else -1)
-
-    def _false(self, literal: int) -> bool:
-        return self.value[abs(literal)] == (-1 if literal > 0 else 1)
-
-    def _assign(self, literal: int, reason: int) -> None:
-        self.value[abs(literal)] = 1 if literal > 0 else -1
-        self.reason[abs(literal)] = reason
-        self.trail.append(literal)
+    def _assign(self, code: int, reason: int) -> None:
+        self.truth[code] = 1
+        self.truth[code ^ 1] = -1
+        self.reason[code] = reason
+        self.trail.append(code)
 
     def add(self, literals: Iterable[int]) -> None:
         """Hold a clause (top-level propagation follows)."""
-        clause = list(dict.fromkeys(literals))
-        if any(-literal in clause for literal in clause):
+        clause = list(dict.fromkeys(_code(literal) for literal in literals))
+        if any(code ^ 1 in clause for code in clause):
             return  # a tautology constrains nothing
         index = len(self.clauses)
         self.clauses.append(clause)
@@ -170,26 +174,26 @@ class _Database:
         self.by_key.setdefault(tuple(sorted(clause)), []).append(index)
         if self.contradictory:
             return
-        clause.sort(key=lambda literal: self._false(literal))  # literals that are not false first
-        if not clause or self._false(clause[0]):
+        truth = self.truth
+        clause.sort(key=lambda code: truth[code] == -1)  # literals that are not false first
+        if not clause or truth[clause[0]] == -1:
             self.contradictory = True
             return
         if len(clause) >= 2:
-            self.watches.setdefault(clause[0], []).append(index)
-            self.watches.setdefault(clause[1], []).append(index)
-        if (len(clause) == 1 or self._false(clause[1])) and not self._true(clause[0]):
+            self.watches[clause[0]].append(index)
+            self.watches[clause[1]].append(index)
+        if (len(clause) == 1 or truth[clause[1]] == -1) and truth[clause[0]] != 1:
             self._assign(clause[0], index)
             if not self.propagate():
                 self.contradictory = True
 
     def delete(self, literals: list[int]) -> str:
         """Stop holding one copy of a clause: ``"deleted"``, ``"kept"`` (a reason) or ``"missing"``."""
-        copies = self.by_key.get(tuple(sorted(set(literals))))
+        copies = self.by_key.get(tuple(sorted({_code(literal) for literal in literals})))
         if not copies:
             return "missing"
         index = copies[-1]
-        clause = self.clauses[index]
-        if any(self.reason[abs(literal)] == index and self._true(literal) for literal in clause):
+        if any(self.reason[code] == index and self.truth[code] == 1 for code in self.clauses[index]):
             return "kept"
         copies.pop()
         self.alive[index] = False  # watch lists drop it lazily
@@ -197,11 +201,12 @@ class _Database:
 
     def propagate(self) -> bool:
         """Unit propagation from the unprocessed part of the trail; False on a conflict."""
-        value, clauses, alive, watches = self.value, self.clauses, self.alive, self.watches
-        while self.head < len(self.trail):
-            false_literal = -self.trail[self.head]
+        truth, clauses, alive, watches, trail = self.truth, self.clauses, self.alive, self.watches, self.trail
+        reason = self.reason
+        while self.head < len(trail):
+            false_code = trail[self.head] ^ 1
             self.head += 1
-            watching = watches.get(false_literal)
+            watching = watches[false_code]
             if not watching:
                 continue
             kept: list[int] = []
@@ -209,41 +214,46 @@ class _Database:
                 if not alive[index]:
                     continue
                 clause = clauses[index]
-                if clause[0] == false_literal:
-                    clause[0], clause[1] = clause[1], false_literal
+                if clause[0] == false_code:
+                    clause[0], clause[1] = clause[1], false_code
                 other = clause[0]
-                other_value = value[abs(other)] if other > 0 else -value[abs(other)]
-                if other_value == 1:
+                other_truth = truth[other]
+                if other_truth == 1:
                     kept.append(index)
                     continue
                 for k in range(2, len(clause)):
                     candidate = clause[k]
-                    if (value[abs(candidate)] if candidate > 0 else -value[abs(candidate)]) != -1:
-                        clause[1], clause[k] = candidate, false_literal
-                        watches.setdefault(candidate, []).append(index)
+                    if truth[candidate] != -1:
+                        clause[1], clause[k] = candidate, false_code
+                        watches[candidate].append(index)
                         break
                 else:
                     kept.append(index)
-                    if other_value == -1:
+                    if other_truth == -1:
                         kept.extend(watching[position + 1:])
-                        watches[false_literal] = kept
+                        watches[false_code] = kept
                         return False
-                    self._assign(other, index)
-            watches[false_literal] = kept
+                    truth[other] = 1
+                    truth[other ^ 1] = -1
+                    reason[other] = index
+                    trail.append(other)
+            watches[false_code] = kept
         return True
 
     def implied(self, lemma: list[int]) -> bool:
         """Whether ``lemma`` follows by reverse unit propagation (the state is restored after)."""
-        if self.contradictory or any(self._true(literal) or -literal in lemma for literal in lemma):
+        codes = [_code(literal) for literal in lemma]
+        truth = self.truth
+        if self.contradictory or any(truth[code] == 1 or code ^ 1 in codes for code in codes):
             return True  # already satisfied at the top level, or a tautology
         mark = len(self.trail)
-        for literal in lemma:
-            if not self._false(literal):
-                self._assign(-literal, -1)
+        for code in codes:
+            if truth[code] == 0:
+                self._assign(code ^ 1, -1)
         conflict = not self.propagate()
-        for literal in self.trail[mark:]:
-            self.value[abs(literal)] = 0
-            self.reason[abs(literal)] = -1
+        for code in self.trail[mark:]:
+            truth[code] = truth[code ^ 1] = 0
+            self.reason[code] = -1
         del self.trail[mark:]
         self.head = mark
         return conflict
