@@ -169,6 +169,8 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("--property", metavar="SPEC")
     repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     repair.add_argument("--format", choices=("text", "json"), default="text")
+    repair.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
+    repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
 
     equiv = commands.add_parser("equiv", help="prove that two netlists compute the same function, or find an "
                                 "input they disagree on")
@@ -381,7 +383,7 @@ def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    network = read_netlist(args.path)
+    network = read_netlist(args.path, args.words, args.width)
     prop = parse_property(args.property) if args.property else None
     if prop is not None:
         check_fits(prop, network, args.path, where="--property")

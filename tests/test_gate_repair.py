@@ -227,3 +227,17 @@ def test_a_circuit_beyond_exhaustive_simulation_is_repaired_only_when_a_complete
     else:
         assert outcome.status == "unknown" and not outcome.verified and outcome.network is None
         assert "could not be decided" in outcome.reason and "change gate" in outcome.reason
+
+
+def test_the_repair_command_groups_the_bits_of_a_blif_file(tmp_path, capsys):
+    from sortcheck.load import read_netlist
+    from sortcheck.load.blif import dump_blif
+    corpus = __import__("pathlib").Path(__file__).resolve().parent.parent / "corpus"
+    broken = read_netlist(str(corpus / "broken" / "compare-and-swap-2x2-flipped-gate.json"))
+    path = tmp_path / "broken.blif"
+    path.write_text(dump_blif(broken), encoding="utf-8")
+    fixed = tmp_path / "fixed.json"
+    capsys.readouterr()
+    assert main(["repair", str(path), "--words", "2", "--output", str(fixed)]) == 0
+    assert "from or to and" in capsys.readouterr().out
+    assert holds_everywhere(read_netlist(str(fixed)), Sorts())
