@@ -241,3 +241,13 @@ def test_the_repair_command_groups_the_bits_of_a_blif_file(tmp_path, capsys):
     assert main(["repair", str(path), "--words", "2", "--output", str(fixed)]) == 0
     assert "from or to and" in capsys.readouterr().out
     assert holds_everywhere(read_netlist(str(fixed)), Sorts())
+
+
+def test_a_median_circuit_with_one_output_word_is_repaired():
+    sorter = build_circuit("merge-exchange", 5, 2, style="mux")
+    circuit = replace(sorter, outputs=(sorter.outputs[2],))
+    assert holds_everywhere(circuit, Median())
+    index, mutant = breaking_mutants(circuit, Median(), 1)[0]
+    outcome = repair_circuit(mutant, Median(), Budget.of(60))
+    assert outcome.status == "repaired" and holds_everywhere(outcome.network, Median())
+    assert circuit.gates[index].out in [suspect.gate for suspect in outcome.suspects[:3]]

@@ -15,15 +15,19 @@ from sortcheck.model import GateCircuit, Median, Merges, PartialSort, Property, 
 from sortcheck.model.semantics import applies, violation
 
 
-def expected_raw(prop: Property, raw: Sequence[int], width: int) -> dict[int, int] | None:
+def expected_raw(prop: Property, raw: Sequence[int], width: int, outputs: int | None = None
+                 ) -> dict[int, int] | None:
     """The raw words the property fixes for one input, by output position; None when it fixes no words.
 
     Functional properties fix words (``sorts``, ``merges`` on inputs in
     scope, ``selects`` in order, ``median``, stable ``partial-sort``); the
-    others only constrain them.
+    others only constrain them.  ``outputs`` is the number of output words
+    (a median circuit may have one; default: as many as inputs).
 
     >>> expected_raw(Sorts(), (3, 1, 2), 2), expected_raw(Median(), (3, 1, 2), 2)
     ({0: 1, 1: 2, 2: 3}, {1: 2})
+    >>> expected_raw(Median(), (3, 1, 2), 2, outputs=1)
+    {0: 2}
     >>> expected_raw(Selects(count=1), (3, 1, 2), 2) is None
     True
     """
@@ -38,7 +42,8 @@ def expected_raw(prop: Property, raw: Sequence[int], width: int) -> dict[int, in
     elif isinstance(prop, Selects) and prop.sorted:
         expected = ordered[:prop.count]
     elif isinstance(prop, Median):
-        return {(len(values) - 1) // 2: to_raw([ordered[(len(values) - 1) // 2]], width)[0]}
+        position = ((len(values) if outputs is None else outputs) - 1) // 2
+        return {position: to_raw([ordered[(len(values) - 1) // 2]], width)[0]}
     elif isinstance(prop, PartialSort) and prop.stable:
         shift = width - prop.key_bits
         expected = sorted(values, key=lambda value: value >> shift)
@@ -68,7 +73,7 @@ def wrong_bits(circuit: GateCircuit, prop: Property, failing: Sequence[Sequence[
     """
     width, found = circuit.width, set()
     for raw in failing:
-        expected = expected_raw(prop, raw, width)
+        expected = expected_raw(prop, raw, width, len(circuit.outputs))
         if expected is None:
             for position in _constrained_outputs(circuit, prop):
                 found.update(bit for bit in circuit.outputs[position].bits if isinstance(bit, str))
@@ -137,7 +142,7 @@ def flip_counts(circuit: GateCircuit, prop: Property, failing: Sequence[Sequence
     lanes = _Lanes(circuit, failing)
     position = {gate.out: number for number, gate in enumerate(lanes.order)}
     width = circuit.width
-    expected = [expected_raw(prop, raw, width) for raw in failing]
+    expected = [expected_raw(prop, raw, width, len(circuit.outputs)) for raw in failing]
     counts = {}
     for name in names:
         signals = lanes.run(dict(lanes.base), position[name], name)
