@@ -197,6 +197,18 @@ def _as_runs(raw: tuple[int, ...], prop: Merges, width: int) -> tuple[int, ...]:
     return to_raw(sorted(values[:prop.split]) + sorted(values[prop.split:]), width)
 
 
+class _Lines(dict):
+    """Line numbers of gates in the file text, found on first use (finding one walks the text)."""
+
+    def __init__(self, text: str | None, index: dict[str, int]):
+        super().__init__()
+        self.text, self.index = text, index
+
+    def __missing__(self, name: str) -> int | None:
+        self[name] = line_of(self.text, f"gates[{self.index[name]}]") if self.text else None
+        return self[name]
+
+
 def _candidates(circuit: GateCircuit, wrong: set[str]) -> list[str]:
     """Gates in the fan-in of the wrong output bits, in file order."""
     cone = set(wrong)
@@ -230,7 +242,7 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
     prop = prop or circuit.claim or DEFAULT_PROPERTY
     check_fits(prop, circuit, None)
     index = {gate.out: position for position, gate in enumerate(circuit.gates)}
-    lines = {name: line_of(text, f"gates[{position}]") if text else None for name, position in index.items()}
+    lines = _Lines(text, index)
     counts = {"tried": 0, "verifications": 0, "added": 0, "undecided": 0}
     bank_size = 0
 
@@ -297,7 +309,7 @@ def _searched(circuit: GateCircuit, cone: list[str], candidates: list[str], max_
 
 
 def _cegar(circuit: GateCircuit, prop: Property, search: _Search, budget: Budget, max_changes: int,
-           options: GateRepairOptions, counts: dict, index: dict, lines: dict):
+           options: GateRepairOptions, counts: dict, index: dict, lines: "_Lines"):
     """Candidate op changes from the solver, checked on every input; counterexamples become copies."""
     cnf = search.cnf
     for _ in range(options.max_rounds):

@@ -9,7 +9,7 @@ gates) to the nearest wrong output bit, then in file order.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import networkx as nx
@@ -78,12 +78,14 @@ def distances_to(circuit: GateCircuit, wrong: set[str]) -> dict[str, int]:
 
 def rank_suspects(circuit: GateCircuit, prop: Property, search, cone: list[str],
               failing: list[tuple[int, ...]], wrong: set[str], budget: Budget, options,
-              index: dict, lines: dict) -> list[Suspect]:
+              index: dict, lines) -> list[Suspect]:
     """Every replaceable gate of the cone judged alone on all copies of ``search``, ranked.
 
     ``search`` is the repair search (:mod:`sortcheck.explain.gate_repair`):
     its ``cnf``, its ``solve(assumptions, budget)`` and ``at_most(count)``;
-    ``options`` gives ``flip_evaluations`` and ``suspects`` (how many to keep).
+    ``options`` gives ``flip_evaluations`` and ``suspects`` (how many to keep);
+    ``index`` maps gate names to their place in the file, ``lines`` to their
+    lines (looked up only for the suspects kept).
     """
     cnf = search.cnf
     one = search.at_most(1)
@@ -102,7 +104,7 @@ def rank_suspects(circuit: GateCircuit, prop: Property, search, cone: list[str],
                 ops.append(op)
                 blocked.append(-cnf.choices[name][op])
         gate = cnf.gates[name]
-        found.append(Suspect(name, index[name], gate.op, lines[name], tuple(sorted(ops)), bool(function),
+        found.append(Suspect(name, index[name], gate.op, None, tuple(sorted(ops)), bool(function),
                              flips.get(name), distances.get(name)))
     found.sort(key=Suspect.rank_key)
-    return found[:options.suspects]
+    return [replace(suspect, line=lines[suspect.gate]) for suspect in found[:options.suspects]]
