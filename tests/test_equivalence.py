@@ -62,9 +62,29 @@ def test_two_different_sorters_lowered_in_different_styles_are_equal():
     first = lower_network(build_family("merge-exchange", 4), 3, style="and-or")
     second = lower_network(build_family("bitonic", 4), 3, style="xor")
     answer = equivalent(first, second, Budget())
-    assert answer.status == Status.PROVED and answer.method == "miter (SAT)"
+    assert answer.status == Status.PROVED and answer.method == "lifted networks, 0-1 miter (SAT)"
     for values in itertools.product(range(8), repeat=4):  # the reference: Python's sorted on every input
         assert first.evaluate(values) == sorted(values) == second.evaluate(values)
+
+
+def test_a_counting_sorter_and_a_lowered_network_are_compared_by_the_miter():
+    from sortcheck.model.counting import counting_sorter
+
+    counting = counting_sorter(4, 2)
+    lowered = lower_network(build_family("odd-even-transposition", 4), 2, style="and-or")
+    answer = equivalent(counting, lowered, Budget())
+    assert answer.status == Status.PROVED and answer.method == "miter (SAT)"
+    for values in itertools.product(range(4), repeat=4):  # Python's sorted as the reference
+        assert counting.evaluate(values) == sorted(values)
+
+
+def test_two_lifted_networks_that_differ_give_words_that_tell_the_circuits_apart():
+    network = build_family("merge-exchange", 6)
+    broken = ComparatorNetwork(6, network.comparators[:3] + network.comparators[4:])
+    first, second = lower_network(network, 5, style="mux"), lower_network(broken, 5, style="xor", signed=False)
+    answer = equivalent(first, second, Budget())
+    assert answer.status == Status.REFUTED
+    assert run(network.comparators, list(answer.input)) != run(broken.comparators, list(answer.input))
 
 
 def test_a_flipped_gate_is_told_apart_with_an_input_that_really_differs():

@@ -11,8 +11,12 @@ any values.
 Two gate circuits with the same input and output words are compared bit for
 bit: random simulation first (bit-parallel), then a miter (the two circuits
 on shared input variables, structurally hashed into one CNF, and "some output
-bit differs") solved by SAT.  A network and a gate circuit are compared at
-the circuit's width, the network lowered to gates first.
+bit differs") solved by SAT.  When both circuits lift to comparator networks
+(:mod:`sortcheck.engines.lift`: every block proved to put the minimum and
+maximum of two whole words on its outputs), the two networks are compared on
+0-1 inputs instead, which scales to widths a miter never reaches.  A network
+and a gate circuit are compared at the circuit's width, the network lowered
+to gates first.
 
 Examples
 --------
@@ -28,6 +32,7 @@ Examples
 
 from __future__ import annotations
 
+import dataclasses
 import time
 from dataclasses import dataclass, field
 from typing import Any, Sequence
@@ -37,9 +42,10 @@ import numpy as np
 from sortcheck.engines.base import Budget, Status
 from sortcheck.engines.gate_cnf import CnfBuilder, encode_circuit
 from sortcheck.engines.gate_simulation import block_words_for, compile_circuit, evaluate_rows, new_table
+from sortcheck.engines.lift import lift_circuit
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.errors import UsageError
-from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
+from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Sorts
 from sortcheck.model.lowering import lower_network
 
 #: Random simulation rounds (blocks of bit-parallel inputs) before the miter is solved.
@@ -126,7 +132,53 @@ def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = F
     found = _simulate(first, second, budget)  # type: ignore[arg-type]
     if found is not None:
         return _differ(first, second, found, "random simulation", started, {"simulated_blocks": SIMULATION_BLOCKS})
+    lifted = _lifted(first, second, signed, budget)  # type: ignore[arg-type]
+    if lifted is not None:
+        answer = _networks(*lifted, budget, started)
+        if answer.status is not Status.REFUTED or _differs_as_words(first, second, answer.input, signed):
+            return _as_lifted(first, second, answer, lifted, signed, started)
     return _miter(first, second, budget, started)  # type: ignore[arg-type]
+
+
+def _lifted(first: GateCircuit, second: GateCircuit, signed: bool, budget: Budget
+            ) -> tuple[ComparatorNetwork, ComparatorNetwork] | None:
+    """The networks both circuits are (blocks proved to be min/max of whole words, inputs in place), or None."""
+    networks = []
+    for circuit in (first, second):
+        if len(set(circuit.widths)) != 1 or budget.expired():
+            return None
+        lifting = lift_circuit(circuit, Sorts(signed=signed), budget)
+        if lifting.network is None or lifting.input_channels is not None or lifting.order.key_bits is not None:
+            return None
+        networks.append(lifting.network)
+    return networks[0], networks[1]
+
+
+def _words_for(zero_one: Sequence[int], width: int, signed: bool) -> tuple[int, ...]:
+    """0-1 values as words with the same order: 0 and 1, or -1 and 0 for 1-bit two's complement."""
+    if signed and width == 1:
+        return tuple(1 - value for value in zero_one)  # the word 1 is -1, below 0
+    return tuple(zero_one)
+
+
+def _differs_as_words(first: GateCircuit, second: GateCircuit, zero_one, signed: bool) -> bool:
+    values = _words_for(zero_one, first.width, signed)
+    return first.evaluate(values) != second.evaluate(values)
+
+
+def _as_lifted(first: GateCircuit, second: GateCircuit, answer: Equivalence,
+               networks: tuple[ComparatorNetwork, ComparatorNetwork], signed: bool, started: float) -> Equivalence:
+    method = "lifted networks, 0-1 miter (SAT)"
+    figures = {**answer.figures, "lifted_comparators": [networks[0].size, networks[1].size]}
+    order = "two's complement" if signed else "unsigned"
+    if answer.status is Status.REFUTED:
+        return _differ(first, second, _words_for(answer.input, first.width, signed), method, started, figures)
+    if answer.status is Status.UNKNOWN:
+        return dataclasses.replace(answer, method=method, figures=figures, seconds=time.perf_counter() - started)
+    scope = (f"both circuits were proved, block by block, to be comparator networks on {first.words} words of "
+             f"{first.width} bits ({order} min/max blocks), and the two networks give the same outputs on every 0-1 "
+             "input, hence on every input of any values")
+    return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
 
 
 def _network_outputs(builder: CnfBuilder, network: ComparatorNetwork, inputs: Sequence[int]) -> list[int]:
