@@ -298,3 +298,9 @@ def test_drat_trim_on_the_path_is_run_on_every_proof(tmp_path, monkeypatch, solv
     assert cnf.endswith(".cnf") and proof.endswith(".drup") and Path(cnf).exists()
     assert result["certified"] is certified
     assert "drat-trim" in result["certificate"]["checked_by"]
+
+
+def test_a_proof_check_out_of_time_is_rejected_not_accepted():
+    clauses, text = sorter_cnf(build_family("bitonic", 32))
+    outcome = check_proof(text, glucose_proof(clauses), seconds=0.0)
+    assert not outcome.accepted and "ran out" in outcome.reason

@@ -259,9 +259,14 @@ class _Database:
         return conflict
 
 
-def check_proof(cnf_text: str, proof_text: str) -> ProofCheck:
-    """Check a text DRUP proof of the CNF's unsatisfiability (see the module text)."""
+def check_proof(cnf_text: str, proof_text: str, seconds: float | None = None) -> ProofCheck:
+    """Check a text DRUP proof of the CNF's unsatisfiability (see the module text).
+
+    With ``seconds``, a check that takes longer stops and rejects the proof,
+    saying so (nothing is accepted unchecked).
+    """
     started = time.perf_counter()
+    deadline = None if seconds is None else started + seconds
     variables, clauses = parse_dimacs(cnf_text)
     steps = list(parse_proof(proof_text))
     largest = max((abs(literal) for _, _, literals in steps for literal in literals), default=0)
@@ -283,6 +288,9 @@ def check_proof(cnf_text: str, proof_text: str) -> ProofCheck:
             missing += done == "missing"
             continue
         lemmas += 1
+        if deadline is not None and lemmas % 256 == 0 and time.perf_counter() > deadline:
+            return outcome(False, f"the check ran out of its {seconds:g} seconds after {lemmas - 1} lemmas "
+                                  f"(nothing is accepted unchecked)", line)
         if not database.implied(literals):
             return outcome(False, f"the lemma on proof line {line} does not follow by unit propagation", line)
         database.add(literals)
