@@ -34,49 +34,17 @@ from __future__ import annotations
 
 import dataclasses
 import time
-from collections import deque
 from dataclasses import dataclass, field
 from typing import Any
 
-import numpy as np
-from pysat.formula import IDPool
-
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict, refused_verdict
 from sortcheck.engines.gate_simulation import counterexample_of, quick_refute
-from sortcheck.engines.lift_blocks import (SEED, Bits, BlockCheck, BlockOrder, Signatures, Word, cone, evaluate_local,
-                                           evaluate_local_rows, gate_map, is_local, min_max_rows, min_max_values,
-                                           prove_block, prove_same, signal_signatures, signals_of, simulated_inputs,
-                                           single)
-from sortcheck.engines.solving import Interrupted, solve_within
+from sortcheck.engines.lift_blocks import BlockOrder, Signatures, signal_signatures
+from sortcheck.engines.lift_channels import network_of
+from sortcheck.engines.lift_search import BlockProof, BlockSearch
+from sortcheck.engines.solving import Interrupted
 from sortcheck.errors import PropertyError
-from sortcheck.model import (ComparatorNetwork, GateCircuit, Median, Netlist, PartialSort, Property, Selects, Sorts,
-                             bit_name, check_fits)
-
-#: A block output bit is "local" when its cone, cut at the block's words, has at most this many gates per bit.
-LOCAL_GATES_PER_BIT = 32
-#: Random values of two free words a candidate's signals are screened on before its SAT proof.
-FREE_LANES = 256
-#: Other signals with the signature of one block output bit that are proved equal to it, at most.
-MAX_EQUIVALENTS = 8
-
-
-@dataclass(frozen=True)
-class BlockProof:
-    """One lifted block: comparator ``comparator`` of the network, its words, its cone and its proof.
-
-    ``words`` are word numbers ``(first, second, minimum, maximum)``: the input
-    words are ``0..n-1``, every lifted block adds two.
-    """
-
-    comparator: int
-    words: tuple[int, int, int, int]
-    gates: int
-    how: str
-    seconds: float
-
-    def to_json(self) -> dict[str, Any]:
-        return {"comparator": self.comparator, "words": list(self.words), "gates": self.gates, "how": self.how,
-                "seconds": self.seconds}
+from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property, Sorts, check_fits
 
 
 @dataclass(frozen=True)
@@ -108,318 +76,6 @@ def _order_of(prop: Property, width: int) -> BlockOrder:
     return BlockOrder(signed=prop.signed, key_bits=key_bits)
 
 
-def relabelling_allowed(prop: Property) -> bool:
-    """Whether ``prop`` ignores the positions of the inputs (so a circuit may permute them first)."""
-    return isinstance(prop, (Sorts, Selects, Median)) or (isinstance(prop, PartialSort) and not prop.stable)
-
-
-class _Search:
-    """The channel words found so far and the blocks between them (mutable, inside :func:`lift_circuit`)."""
-
-    def __init__(self, circuit: GateCircuit, signatures: Signatures, order: BlockOrder, budget: Budget,
-                 distant: bool = False):
-        self.signatures, self.order, self.budget, self.distant = signatures, order, budget, distant
-        self.gates = gate_map(circuit)
-        self.words: list[Word] = [single(tuple(bit_name(w.name, i) for i in range(w.width))) for w in circuit.inputs]
-        self.live: set[int] = set(range(len(self.words)))
-        self.owner: dict = {signal: (number, i) for number, word in enumerate(self.words)
-                            for i, bits in enumerate(word) for signal in bits}
-        self.blocks: list[BlockProof] = []
-        self.rejected: list = []
-        self.proved_forms: dict = {}
-        self.sat_calls = 0
-        #: Random free values of two words (bias to equal and near-equal values), to screen candidate signals.
-        self.free_rows = simulated_inputs(2, circuit.width, FREE_LANES, seed=SEED + 1)
-
-    def run(self) -> None:
-        """Lift blocks until no pair of channel words has a proved min/max block in the circuit."""
-        queue, checked = deque(sorted(self.live)), []
-        while queue:
-            if self.budget.expired():
-                raise Interrupted
-            word = queue.popleft()
-            partners = [p for p in checked if p in self.live]
-            found = self._lift_one(word, partners) if partners else None
-            if found is None:
-                checked.append(word)
-                continue
-            self.live -= {found[0], found[1]}
-            self.live |= {found[2], found[3]}
-            queue.extend(found[2:])
-
-    def _rows(self, number: int) -> np.ndarray:
-        return self.signatures.word_rows(tuple(bits[0] for bits in self.words[number]))
-
-    def _candidates(self, word: int, partners: list[int]):
-        """(first, second) word pairs and their min/max rows whose first row words all occur in the circuit."""
-        rows = self._rows(word)[None]
-        others = np.stack([self._rows(p) for p in partners])
-        orientations = [(False, min_max_rows(rows, others, self.order))]
-        if self.order.key_bits is not None:  # the tie rule makes the pair ordered
-            orientations.append((True, min_max_rows(others, rows, self.order)))
-        known = self.signatures.first_words
-        for flipped, (low, high) in orientations:
-            both = np.concatenate([low, high], axis=1)
-            for number, values in enumerate(both[:, :, 0].tolist()):
-                if all(value in known for value in values):
-                    pair = (partners[number], word) if flipped else (word, partners[number])
-                    yield pair, both[number]
-
-    def _options(self, rows: np.ndarray, pair: tuple[int, int]) -> tuple[list[list], set] | None:
-        """For every row, the signals with that signature that may be that bit of the block, best first.
-
-        First the signals on no channel word that are functions of the pair's
-        words alone (earliest first), then the bit at that place of one of the
-        pair's words, then (only in a ``distant`` search) any signal on no
-        word, whose proof then reaches back to the primary inputs.  Also the
-        set of the local ones (functions of the pair's words).  None when a
-        row has none.
-        """
-        first, second = pair
-        width = len(self.words[first])
-        cut = signals_of(self.words[first]) | signals_of(self.words[second])
-        limit = LOCAL_GATES_PER_BIT * width
-        options, every_local = [], set()
-        for position, row in enumerate(rows):
-            like = self.signatures.signals_like(row)
-            fresh = [signal for signal in like if signal not in self.owner]
-            local = [signal for signal in fresh if is_local(self.gates, signal, cut, limit)]
-            places = {(word, position % width) for word in pair}
-            mine = [signal for signal in like if self.owner.get(signal) in places]
-            distant = [signal for signal in fresh if signal not in local] if self.distant else []
-            found = local + mine + distant
-            if not found:
-                return None
-            options.append(found)
-            every_local.update(local)
-        return options, every_local
-
-    def _refine(self, options: list[list], pair: tuple[int, int], local: set, witness: tuple[int, int] | None
-                ) -> bool:
-        """Drop every first option that is a function of the pair's words and is wrong at ``witness``."""
-        if witness is None:
-            return False
-        width = len(self.words[pair[0]])
-        values = {signal: (word >> i) & 1 for number, word in zip(pair, witness)
-                  for i, bits in enumerate(self.words[number]) for signal in bits}
-        wanted = [(word >> i) & 1 for word in min_max_values(*witness, width, self.order) for i in range(width)]
-        dropped = False
-        for position, found in enumerate(options):
-            signal = found[0]
-            if signal not in local:
-                continue
-            if evaluate_local(self.gates, signal, values) != wanted[position]:
-                found.pop(0)
-                dropped = True
-        return dropped
-
-    def _screen(self, options: list[list], pair: tuple[int, int], local: set) -> None:
-        """Drop the options that are functions of the pair's words but not min/max on free random words."""
-        first, second = self.words[pair[0]], self.words[pair[1]]
-        width = len(first)
-        lanes = self.free_rows.shape[1]
-        values = {signal: self.free_rows[k * width + i] for k, word in enumerate((first, second))
-                  for i, bits in enumerate(word) for signal in bits}
-        low, high = min_max_rows(self.free_rows[:width], self.free_rows[width:], self.order)
-        wanted = np.concatenate([low, high])
-        for position, found in enumerate(options):
-            found[:] = [signal for signal in found if signal not in local
-                        or np.array_equal(evaluate_local_rows(self.gates, signal, values, lanes), wanted[position])]
-
-    def _lift_one(self, word: int, partners: list[int]) -> tuple[int, int, int, int] | None:
-        """Lift the block of ``word`` with one of ``partners`` whose outputs come first in the circuit, if any."""
-        found = []
-        for pair, rows in self._candidates(word, partners):
-            chosen = self._options(rows, pair)
-            if chosen is not None:
-                self._screen(*chosen[:1], pair, chosen[1])
-                if all(chosen[0]):
-                    found.append((max(self.signatures.index[bits[0]] for bits in chosen[0]), pair, *chosen))
-        for _, pair, options, local in sorted(found, key=lambda item: item[0]):
-            while all(options):
-                picks = tuple(bits[0] for bits in options)
-                if not any(signal in local for signal in picks):
-                    break  # the pair is already in order, or its min/max would be computed elsewhere
-                check = self._prove(*pair, picks)
-                if check.proved:
-                    return self._add_block(pair, options, local, check)
-                if not self._refine(options, pair, local, check.witness):
-                    self.rejected.append((pair, check.witness))
-                    break
-        return None
-
-    def _add_block(self, pair: tuple[int, int], options: list[list], local: set, check: BlockCheck
-                   ) -> tuple[int, int, int, int]:
-        first, second = pair
-        width = len(self.words[first])
-        sides = ({found[0] for found in options[width:]}, {found[0] for found in options[:width]})
-        bits = [(found[0], *self._equivalents(pair, position, [s for s in found[1:] if s in local],
-                                              sides[position >= width]))
-                for position, found in enumerate(options)]
-        numbers = (first, second, len(self.words), len(self.words) + 1)
-        for number, new in zip(numbers[2:], (tuple(bits[:width]), tuple(bits[width:]))):
-            self.words.append(new)
-            self.owner.update({signal: (number, i) for i, signals in enumerate(new) for signal in signals})
-        self.blocks.append(BlockProof(len(self.blocks), numbers, check.gates, check.how, check.seconds))
-        return numbers
-
-    def _prove(self, first: int, second: int, outputs: Bits) -> BlockCheck:
-        a, b = self.words[first], self.words[second]
-        check = prove_block(self.gates, a, b, outputs, self.order, self.budget, self.proved_forms)
-        self.sat_calls += check.how == "sat"
-        if check.proved:
-            self.proved_forms[check.canonical] = True
-            return check
-        _, leaves = cone(self.gates, outputs, signals_of(a) | signals_of(b))
-        if not leaves:  # the cut was exact: the block is not min/max
-            return check
-        self.sat_calls += 1  # other leaves were free: try again with everything encoded from the inputs
-        return prove_block(self.gates, a, b, outputs, self.order, self.budget, full_cone=True)
-
-    def _equivalents(self, pair: tuple[int, int], position: int, candidates: list, other_side: set) -> list:
-        """The ``candidates`` (functions of the pair's words) proved to be bit ``position`` of the block too.
-
-        Signals that read the picks of the other output word do not count: a
-        signal computed from both outputs belongs to a later block (a
-        comparator on the same pair, say), not to this one.
-        """
-        a, b = self.words[pair[0]], self.words[pair[1]]
-        cut = signals_of(a) | signals_of(b)
-        proved = []
-        for signal in candidates[:MAX_EQUIVALENTS]:
-            if signal in self.owner:
-                continue
-            found, _ = cone(self.gates, (signal,), cut)
-            if any(source in other_side for gate in found for source in gate.inputs):
-                continue
-            check = prove_block(self.gates, a, b, (signal,), self.order, self.budget, self.proved_forms,
-                                positions=(position,))
-            self.sat_calls += check.how == "sat"
-            if check.proved:
-                self.proved_forms[check.canonical] = True
-                proved.append(signal)
-        return proved
-
-
-def output_channels(circuit: GateCircuit, prop: Property) -> list[int]:
-    """The network channel each output word must be: ``k``, or the middle one for a lone median word."""
-    if isinstance(prop, Median) and len(circuit.outputs) == 1:
-        return [(circuit.words - 1) // 2]
-    return list(range(len(circuit.outputs)))
-
-
-def _output_word(search: _Search, bits: Bits) -> int | None:
-    """The live channel word whose bits ``bits`` are (by proved equivalence, or by a proof now), or None."""
-    owners = {search.owner.get(bit) for bit in bits}
-    numbers = {owner[0] for owner in owners if owner is not None}
-    if None not in owners and len(numbers) == 1 and [owner[1] for owner in map(search.owner.get, bits)] == \
-            list(range(len(bits))):
-        number = numbers.pop()
-        return number if number in search.live else None
-    rows = search.signatures.word_rows(bits)
-    for number in sorted(search.live):
-        if np.array_equal(search._rows(number), rows) and \
-                prove_same(search.gates, search.words[number], bits, search.budget).proved:
-            return number
-    return None
-
-
-def _match_outputs(search: _Search, circuit: GateCircuit) -> tuple[list[int], str | None]:
-    """The channel word of every output word, or why some output is none."""
-    matched: list[int] = []
-    for k, output in enumerate(circuit.outputs):
-        number = _output_word(search, tuple(output.bits))
-        if number is None or number in matched:
-            return matched, _unexplained(search, circuit, k, number is not None)
-        matched.append(number)
-    return matched, None
-
-
-def _unexplained(search: _Search, circuit: GateCircuit, k: int, repeated: bool) -> str:
-    output = circuit.outputs[k]
-    lifted = f"{len(search.blocks)} blocks lifted"
-    if repeated:
-        return f"output word {output.name!r} repeats a channel word another output already holds ({lifted})"
-    found, _ = cone(search.gates, output.bits, set(search.owner))
-    if not found:
-        return f"output word {output.name!r} is made of constants or of bits of different channel words ({lifted})"
-    names = ", ".join(gate.out for gate in found[:3])
-    return (f"output word {output.name!r} is not a channel word: {len(found)} gates before it are in no proved "
-            f"min/max block (first: {names}); {lifted}" + (f", {len(search.rejected)} candidates failed their proof"
-                                                          if search.rejected else ""))
-
-
-def route(words: int, blocks: list[tuple[int, int, int, int]], targets: dict[int, int], budget: Budget
-          ) -> list[int] | None:
-    """A channel for every word so that each block keeps its two channels and ``targets`` hold; None if none.
-
-    Input word ``i`` is on channel ``i``; a block ``(a, b, low, high)`` puts
-    ``low`` and ``high`` on the channels of ``a`` and ``b``, either way round.
-
-    >>> route(2, [(0, 1, 2, 3)], {3: 0, 2: 1}, Budget())
-    [0, 1, 1, 0]
-    """
-    count = words + 2 * len(blocks)
-    pool = IDPool()
-
-    def on(word: int, channel: int) -> int:
-        return pool.id((word, channel))
-
-    clauses = [[on(i, i)] for i in range(words)] + [[-on(i, c)] for i in range(words) for c in range(words) if c != i]
-    for number, (a, b, low, high) in enumerate(blocks):
-        swap = pool.id(("swap", number))
-        for c in range(words):
-            clauses += [[swap, -on(a, c), on(low, c)], [swap, -on(b, c), on(high, c)],
-                        [-swap, -on(a, c), on(high, c)], [-swap, -on(b, c), on(low, c)],
-                        [-on(low, c), on(a, c), on(b, c)], [-on(high, c), on(a, c), on(b, c)],
-                        [-on(low, c), -on(high, c)]]
-    clauses += [[on(word, channel)] for word, channel in targets.items()]
-    model = solve_within(clauses, budget)
-    if model is None:
-        return None
-    true = {literal for literal in model if literal > 0}
-    return [next((c for c in range(words) if on(w, c) in true), -1) for w in range(count)]
-
-
-def greedy_channels(words: int, blocks: list[tuple[int, int, int, int]]) -> list[int]:
-    """Channels with every block's minimum on the lower of its two channels.
-
-    >>> greedy_channels(2, [(1, 0, 2, 3)])
-    [0, 1, 0, 1]
-    """
-    channel = list(range(words)) + [0] * (2 * len(blocks))
-    for a, b, low, high in blocks:
-        channel[low], channel[high] = sorted((channel[a], channel[b]))
-    return channel
-
-
-def _relabel(words: int, blocks: list[tuple[int, int, int, int]], targets: dict[int, int]
-             ) -> tuple[list[int], tuple[int, ...]]:
-    """Greedy channels renamed so that ``targets`` hold, and the channel every input word is renamed to."""
-    channel = greedy_channels(words, blocks)
-    rename = {channel[word]: target for word, target in targets.items()}
-    spare = iter(sorted(set(range(words)) - set(rename.values())))
-    rename.update({c: next(spare) for c in range(words) if c not in rename})
-    return [rename[c] for c in channel], tuple(rename[i] for i in range(words))
-
-
-def channels_hold(channel: list[int], inputs: tuple[int, ...], blocks: list[tuple[int, int, int, int]],
-                  targets: dict[int, int]) -> bool:
-    """Whether ``channel`` puts input word ``i`` on ``inputs[i]``, keeps every block on its two channels and meets
-    ``targets``; then the network of the blocks computes the circuit (``encodings/structural-lifting.md``).
-
-    >>> channels_hold([0, 1, 1, 0], (0, 1), [(0, 1, 2, 3)], {3: 0})
-    True
-    >>> channels_hold([0, 1, 1, 1], (0, 1), [(0, 1, 2, 3)], {})
-    False
-    """
-    if sorted(inputs) != list(range(len(inputs))) or any(channel[i] != c for i, c in enumerate(inputs)):
-        return False
-    if any(sorted((channel[a], channel[b])) != sorted((channel[low], channel[high])) for a, b, low, high in blocks):
-        return False
-    return all(channel[word] == target for word, target in targets.items())
-
-
 def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Budget = Budget()) -> Lifting:
     """Find the comparator network ``circuit`` is, block by proved block (see the module docstring).
 
@@ -433,7 +89,7 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
     order = _order_of(prop, circuit.width)
     signatures = signal_signatures(circuit)
     figures: dict[str, Any] = {"signature_seconds": time.perf_counter() - started, "gates": len(circuit.gates)}
-    search = _Search(circuit, signatures, order, budget)
+    search = BlockSearch(circuit, signatures, order, budget)
     timed_out, network, channels_in, failure = False, None, None, None
     try:
         if isinstance(prop, PartialSort) and prop.stable:
@@ -442,11 +98,11 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
             failure = "the input words have different widths"
         else:
             search.run()
-            network, channels_in, failure = _network_of(search, circuit, prop, budget)
+            network, channels_in, failure = network_of(search, circuit, prop, budget)
             if failure is not None:  # once more, letting block bits be computed anywhere
-                distant = _Search(circuit, signatures, order, budget, distant=True)
+                distant = BlockSearch(circuit, signatures, order, budget, distant=True)
                 distant.run()
-                found = _network_of(distant, circuit, prop, budget)
+                found = network_of(distant, circuit, prop, budget)
                 if found[2] is None:
                     search, (network, channels_in, failure) = distant, found
             if failure is not None and not search.blocks:
@@ -465,34 +121,13 @@ def _other_order_hint(circuit: GateCircuit, signatures: Signatures, order: Block
                       budget: Budget) -> str:
     """A note when the circuit lifts with blocks of the other signedness (which says nothing about ``prop``)."""
     other = dataclasses.replace(order, signed=not order.signed)
-    search = _Search(circuit, signatures, other, budget)
+    search = BlockSearch(circuit, signatures, other, budget)
     search.run()
-    if _network_of(search, circuit, prop, budget)[2] is not None:
+    if network_of(search, circuit, prop, budget)[2] is not None:
         return ""
     return (f"; the circuit does lift with blocks comparing {other.describe()} words, but a verdict under that "
             f"order says nothing about {prop.describe()}")
 
-
-def _network_of(search: _Search, circuit: GateCircuit, prop: Property, budget: Budget):
-    matched, failure = _match_outputs(search, circuit)
-    if failure is not None:
-        return None, None, failure
-    targets = dict(zip(matched, output_channels(circuit, prop)))
-    blocks = [block.words for block in search.blocks]
-    channels_in = None
-    channel = greedy_channels(circuit.words, blocks)
-    if any(channel[word] != target for word, target in targets.items()):
-        channel = route(circuit.words, blocks, targets, budget)
-    if channel is None:
-        if not relabelling_allowed(prop):
-            return None, None, (f"the outputs are the channel words in an order no comparator network on the input "
-                                f"positions gives, and {prop.describe()} depends on input positions")
-        channel, channels_in = _relabel(circuit.words, blocks, targets)
-    if not channels_hold(channel, channels_in or tuple(range(circuit.words)), blocks, targets):
-        return None, None, "internal error: the channel assignment breaks its own conditions"
-    comparators = tuple((channel[low], channel[high]) for _, _, low, high in blocks)
-    network = ComparatorNetwork(circuit.words, comparators, name=f"lifted {circuit.name or 'circuit'}")
-    return network, channels_in, None
 
 
 def network_property(prop: Property) -> Property:
