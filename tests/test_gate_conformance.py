@@ -26,7 +26,7 @@ LISTED = {path: verdict for verdict, path in (line.split() for line in
 GATE_FILES = sorted(path for path in LISTED if path.endswith(".json")
                     and isinstance(read_netlist(CORPUS / path), GateCircuit))
 #: smt bit-blasts the whole circuit with z3: kept to the smaller circuits so the suite stays quick.
-SMT_GATES = 250
+SMT_GATES = 800
 
 
 def engines_for(circuit):

@@ -54,7 +54,8 @@ CHOICE_REASONS = {
              "simulation of small inputs or threshold SAT"),
     "simulate": (f"it simulates the gate circuit on every input when there are at most 2^{EXHAUSTIVE_GATE_BITS}, "
                  "and on corner-case and random inputs otherwise (which can only refute)"),
-    "smt": "it proves the property on words of the chosen width with z3, without the 0-1 principle",
+    "smt": ("it proves the property with z3 on words: comparator networks at the chosen width, without the 0-1 "
+            "principle; gate circuits at their own width, every gate encoded bit by bit (up to 2,000 gates)"),
 }
 
 #: Names accepted by ``--engine``.
