@@ -10,7 +10,9 @@ the property holds, with comments that map variables back to channels (or words 
   (:func:`sortcheck.engines.smt.smtlib_text`) at the smallest width that
   holds a distinct value per channel, which covers inputs of any values;
 * gate circuits, DIMACS: the CNF of :mod:`sortcheck.engines.gate_spec`, when
-  that module is present.
+  that module is present;
+* gate circuits, SMT-LIB 2: the ``smt`` engine's gate-by-gate bit-vector
+  formula (:mod:`sortcheck.engines.smt_gates`) on the circuit's own words.
 
 >>> from sortcheck.model import ComparatorNetwork, Sorts
 >>> text = export_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "smtlib")
@@ -22,8 +24,9 @@ from __future__ import annotations
 
 from sortcheck.engines.network_cnf import annotated_dimacs, dimacs
 from sortcheck.engines.smt import default_width, smtlib_text
+from sortcheck.engines.smt_gates import circuit_refusal, circuit_smtlib_text
 from sortcheck.errors import UsageError
-from sortcheck.model import ComparatorNetwork, Netlist, PartialSort, Property
+from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property
 
 FORMATS = ("dimacs", "smtlib")
 
@@ -44,8 +47,7 @@ def export_text(netlist: Netlist, prop: Property, to: str, source: str | None = 
         return _network_dimacs(netlist, prop) if to == "dimacs" else _network_smtlib(netlist, prop)
     if to == "dimacs":
         return _circuit_dimacs(netlist, prop, source)
-    raise UsageError("SMT-LIB export of gate circuits is not available yet: export it as DIMACS (--to dimacs) "
-                     "or check it with sortcheck check", source)
+    return _circuit_smtlib(netlist, prop, source)
 
 
 def _network_dimacs(network: ComparatorNetwork, prop: Property) -> str:
@@ -64,6 +66,19 @@ def _network_smtlib(network: ComparatorNetwork, prop: Property) -> str:
              f"any values",
              "; sat: the model's x<c> are a failing input"]
     return "\n".join(lines) + "\n" + smtlib_text(network, prop, width)
+
+
+def _circuit_smtlib(circuit: GateCircuit, prop: Property, source: str | None) -> str:
+    refused = circuit_refusal(circuit, prop, max_gates=len(circuit.gates))
+    if refused is not None:
+        raise UsageError(f"no SMT-LIB export for this circuit: {refused[1]}", source)
+    kind = "two's complement" if prop.signed else "unsigned"
+    lines = [f"; sortcheck SMT-LIB 2 script: unsat exactly when the netlist meets: {prop.describe()}",
+             f"; {circuit.words} words of {circuit.width} bits ({kind}), {len(circuit.gates)} gates",
+             *(f"; x{index} is input word {word.name} (bit 0 least significant)"
+               for index, word in enumerate(circuit.inputs)),
+             "; sat: the model's x<i> are a failing input"]
+    return "\n".join(lines) + "\n" + circuit_smtlib_text(circuit, prop)
 
 
 def _circuit_dimacs(circuit: Netlist, prop: Property, source: str | None) -> str:
