@@ -20,7 +20,8 @@ and is offered only when that check proves it; when the check refutes it,
 its counterexample joins the bank.
 
 The order is fixed, so the same input gives the same repair: the first
-candidate, in this order, whose property holds.
+candidate, in this order, whose property holds (the changes, their order and
+the bank run are in :mod:`sortcheck.explain.repair_candidates`).
 
 1. Fewer changes first.
 2. One change: by kind, ``reverse``, ``insert``, ``move``, ``delete`` (the
@@ -43,84 +44,22 @@ decides only how many full checks it takes.
 from __future__ import annotations
 
 import time
-from bisect import bisect_right
 from dataclasses import dataclass, field
-from functools import lru_cache
-from itertools import combinations
-from typing import Any, Sequence
+from typing import Any
 
 import numpy as np
 
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
-from sortcheck.engines.bitslice import failure_mask
-from sortcheck.explain.diagnose import diagnose_network, permutation_of
 from sortcheck.explain.repair_bank import Bank, failing, pack, seed_bank
+from sortcheck.explain.repair_candidates import (  # noqa: F401  (KINDS and replacements: re-exported)
+    KINDS, Change, Comparator, _Counts, _Guide, _Space, advance, all_candidates, apply_changes, guide_for,
+    replacements, scan, search_space)
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Property, Sorts, check_fits
 from sortcheck.model.semantics import violation
-
-#: Kinds of change, in the order the search tries them.
-KINDS = ("reverse", "insert", "move", "delete")
-_RANK = {kind: rank for rank, kind in enumerate(KINDS)}
 
 #: Outcome statuses: a proved repair; the property already holds; no repair
 #: within the search; the budget ran out; no engine could decide the property.
 STATUSES = ("repaired", "holds", "none", "budget", "unknown")
-
-Comparator = tuple[int, int]
-
-
-@dataclass(frozen=True)
-class Change:
-    """One edit of a network.
-
-    ``index`` is a position in the network as changed by the changes before
-    this one.  ``comparator`` is the comparator at ``index`` after the change
-    (for ``delete``: the comparator removed); ``replaced`` the one that stood
-    there before (None for ``insert``).
-
-    >>> Change("reverse", 2, (3, 1), (1, 3)).to_json()
-    {'kind': 'reverse', 'index': 2, 'comparator': [3, 1], 'replaced': [1, 3]}
-    """
-
-    kind: str
-    index: int
-    comparator: Comparator
-    replaced: Comparator | None = None
-
-    def apply(self, comparators: tuple[Comparator, ...]) -> tuple[Comparator, ...]:
-        """The comparators after this change."""
-        head, tail = comparators[:self.index], comparators[self.index:]
-        if self.kind == "insert":
-            return head + (self.comparator,) + tail
-        if self.kind == "delete":
-            return head + tail[1:]
-        return head + (self.comparator,) + tail[1:]
-
-    def describe(self) -> str:
-        """One phrase for people."""
-        new = list(self.comparator)
-        if self.kind == "insert":
-            return f"insert {new} at position {self.index}"
-        if self.kind == "delete":
-            return f"delete {new} at position {self.index}"
-        return f"{self.kind} {list(self.replaced)} at position {self.index} to {new}"
-
-    def to_json(self) -> dict[str, Any]:
-        return {"kind": self.kind, "index": self.index, "comparator": list(self.comparator),
-                "replaced": None if self.replaced is None else list(self.replaced)}
-
-
-def apply_changes(network: ComparatorNetwork, changes: Sequence[Change]) -> ComparatorNetwork:
-    """The network after the changes, applied in order (name, description and claim kept).
-
-    >>> net = ComparatorNetwork(3, ((0, 1), (1, 2)))
-    >>> apply_changes(net, [Change("insert", 2, (0, 1))]).comparators
-    ((0, 1), (1, 2), (0, 1))
-    """
-    comparators = network.comparators
-    for change in changes:
-        comparators = change.apply(comparators)
-    return ComparatorNetwork(network.channels, comparators, network.name, network.description, network.claim)
 
 
 @dataclass(frozen=True)
@@ -188,250 +127,6 @@ class RepairOutcome:
                 "candidates_tried": self.candidates_tried, "verifications": self.verifications,
                 "bank_inputs": self.bank_inputs, "counterexamples_added": self.counterexamples_added,
                 "undecided": self.undecided, "seconds": round(self.seconds, 3)}
-
-
-# ----------------------------------------------------------------------------- candidates and their order
-
-
-@dataclass(frozen=True)
-class _Guide:
-    """Where a network goes wrong: the sealing comparator and the witness values' channels before each position."""
-
-    seal: int | None
-    witness: tuple[tuple[int, int], ...] = ()
-
-    def key(self, kind: str, index: int, comparator: Comparator) -> tuple:
-        where = set(self.witness[index]) if index < len(self.witness) else set()
-        touched = len(where & set(comparator))
-        score = 0 if touched == 2 else 1 if touched else 2
-        if self.seal is None:
-            distance = 0
-        else:
-            distance = abs(index - (self.seal + 1 if kind == "insert" else self.seal))
-        return (_RANK[kind], score, distance, index, comparator)
-
-
-def guide_for(comparators: tuple[Comparator, ...], channels: int, prop: Property,
-              vector: Sequence[int] | None) -> _Guide:
-    """The diagnosis of ``vector`` on the comparators, as an order of candidates.
-
-    >>> guide_for(((0, 1), (1, 2)), 3, Sorts(), (1, 1, 0))
-    _Guide(seal=1, witness=((0, 2), (0, 2), (0, 1)))
-    """
-    if vector is None:
-        return _Guide(None)
-    diagnosis = diagnose_network(ComparatorNetwork(channels, comparators), prop, vector)
-    if diagnosis is None:
-        return _Guide(None)
-    values = permutation_of(list(vector))
-    first, second = values[diagnosis.inputs[0]], values[diagnosis.inputs[1]]
-    where = {first: diagnosis.inputs[0], second: diagnosis.inputs[1]}
-    witness = []
-    for a, b in comparators:
-        witness.append((where[first], where[second]))
-        if values[a] > values[b]:
-            values[a], values[b] = values[b], values[a]
-            for token, channel in ((values[a], a), (values[b], b)):
-                if token in where:
-                    where[token] = channel
-    witness.append((where[first], where[second]))
-    seal = diagnosis.sealed_at if diagnosis.sealed_at is not None else diagnosis.last_meeting
-    return _Guide(seal, tuple(witness))
-
-
-def replacements(comparator: Comparator, channels: int) -> list[tuple[str, Comparator | None]]:
-    """The reverse, moves and delete of one comparator, in order (None: deleted).
-
-    >>> replacements((0, 2), 3)
-    [('reverse', (2, 0)), ('move', (1, 2)), ('move', (0, 1)), ('delete', None)]
-    """
-    a, b = comparator
-    standard = a < b
-    options: list[tuple[str, Comparator | None]] = [("reverse", (b, a))]
-    for kept in (b, a):
-        for channel in range(channels):
-            if channel not in (a, b):
-                low, high = min(channel, kept), max(channel, kept)
-                options.append(("move", (low, high) if standard else (high, low)))
-    options.append(("delete", None))
-    return options
-
-
-@dataclass(frozen=True)
-class _Space:
-    """Which one-change candidates are searched: anchors ``first..last`` and which inserts."""
-
-    channels: int
-    descending: bool
-    first: int
-    last: int
-    witness_inserts_only: bool = False
-
-    def inserts(self, index: int, guide: _Guide) -> list[Comparator]:
-        pairs = combinations(range(self.channels), 2)
-        if self.witness_inserts_only and index < len(guide.witness):
-            where = set(guide.witness[index])
-            pairs = (pair for pair in pairs if where & set(pair))
-        return [(j, i) for i, j in pairs] if self.descending else list(pairs)
-
-    def insert_lanes(self, index: int, guide: _Guide) -> tuple[tuple[Comparator, ...], np.ndarray, np.ndarray]:
-        """The inserts at ``index`` with the arrays of their two ends."""
-        if not self.witness_inserts_only:
-            return _insert_lanes(self.channels, self.descending)
-        pairs = tuple(self.inserts(index, guide))
-        return (pairs, *_ends(pairs))
-
-
-def search_space(network: ComparatorNetwork, prop: Property, guide: _Guide, limit: int) -> tuple[_Space, str]:
-    """The candidates searched for ``network``, and a phrase saying which."""
-    n, size = network.channels, network.size
-    descending = isinstance(prop, Sorts) and prop.order == "descending"
-    per_anchor = n * (n - 1) // 2 + 2 * (n - 1)
-    if per_anchor * (size + 1) <= limit:
-        return _Space(n, descending, 0, size), "every network within the changes"
-    centre = guide.seal if guide.seal is not None else 0
-    restricted = per_anchor > limit
-    if restricted:
-        per_anchor = 2 * n + 2 * (n - 1)
-    half = max(0, limit // per_anchor // 2)
-    # The fault lies at or before the sealing comparator, so the window reaches back further than forward.
-    first, last = max(0, centre - (3 * half) // 2), min(size, centre + half // 2)
-    inserts = " (inserts touching a witness channel only)" if restricted else ""
-    return (_Space(n, descending, first, last, restricted),
-            f"changes at positions {first}..{last} of {size}{inserts}, around the sealing comparator")
-
-
-def all_candidates(comparators: tuple[Comparator, ...], space: _Space, guide: _Guide) -> list[tuple[tuple, Change]]:
-    """Every one-change candidate in the space, in the search order."""
-    found = []
-    for index in range(space.first, space.last + 1):
-        for pair in space.inserts(index, guide):
-            found.append((guide.key("insert", index, pair), Change("insert", index, pair)))
-        if index < len(comparators):
-            old = comparators[index]
-            for kind, new in replacements(old, space.channels):
-                new = old if new is None else new
-                found.append((guide.key(kind, index, new), Change(kind, index, new, old)))
-    found.sort(key=lambda item: item[0])
-    return found
-
-
-# ----------------------------------------------------------------------------- bank evaluation of candidates
-
-_CHUNK_WORDS = 1 << 22
-
-
-def advance(state: np.ndarray, comparator: Comparator) -> None:
-    """Apply one comparator to a bank state ``(channels, ...)`` in place."""
-    a, b = comparator
-    low = state[a] & state[b]
-    state[b] |= state[a]
-    state[a] = low
-
-
-def place(block: np.ndarray, base: np.ndarray, low: np.ndarray, high: np.ndarray) -> None:
-    """Fill the lanes of ``block`` ``(channels, lanes, words)`` with ``base``; apply ``(low[i], high[i])`` to lane ``i``.
-
-    ``low[i] == high[i]`` applies nothing (a delete).
-
-    >>> block = np.empty((2, 2, 1), dtype=np.uint64)
-    >>> place(block, pack([(1, 0)], 2), np.array([0, 0]), np.array([1, 0]))
-    >>> block[:, :, 0].tolist()
-    [[0, 1], [1, 0]]
-    """
-    block[:] = base[:, None, :]
-    lanes = np.arange(len(low))
-    first, second = block[low, lanes], block[high, lanes]
-    block[low, lanes] = first & second
-    block[high, lanes] = first | second
-
-
-def _ends(alternatives: Sequence[Comparator | None]) -> tuple[np.ndarray, np.ndarray]:
-    low = np.array([0 if c is None else c[0] for c in alternatives], dtype=np.intp)
-    high = np.array([0 if c is None else c[1] for c in alternatives], dtype=np.intp)
-    return low, high
-
-
-_NO_LANES = ((), np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp))
-
-
-@lru_cache(maxsize=1 << 16)
-def _replacement_lanes(comparator: Comparator, channels: int):
-    options = tuple(replacements(comparator, channels))
-    return (options, *_ends([new for _, new in options]))
-
-
-@lru_cache(maxsize=64)
-def _insert_lanes(channels: int, descending: bool):
-    pairs = tuple((j, i) if descending else (i, j) for i, j in combinations(range(channels), 2))
-    return (pairs, *_ends(pairs))
-
-
-@dataclass
-class _Counts:
-    tried: int = 0
-    verifications: int = 0
-    added: int = 0
-    undecided: int = 0
-
-
-def scan(comparators: tuple[Comparator, ...], prop: Property, state: np.ndarray, start: int, space: _Space,
-         guide: _Guide, counts: _Counts, budget: Budget) -> list[tuple[tuple, Change]] | None:
-    """The one-change candidates at anchors ``space.first..space.last`` that pass the bank, in search order.
-
-    ``state`` is the bank after ``comparators[:start]``; None when the budget
-    ran out.  All candidates of a group of anchors are lanes of one array,
-    ordered by the step at which they join: the inserts at an anchor join
-    before its comparator, the replacements of that comparator after it, so
-    each comparator is applied once, to a prefix of the lanes.
-    """
-    state, size = state.copy(), len(comparators)
-    n, words = state.shape
-    capacity = max(1, _CHUNK_WORDS // (n * words))
-    for index in range(start, space.first):
-        advance(state, comparators[index])
-    survivors, anchor, last = [], max(start, space.first), min(space.last, size)
-    while anchor <= last:
-        if budget.expired():
-            return None
-        blocks, lanes, group = [], 0, anchor  # blocks: (anchor, first lane, insert pairs, replacement options)
-        while anchor <= last and (not blocks or lanes < capacity):
-            inserts = space.insert_lanes(anchor, guide)
-            repl = _replacement_lanes(comparators[anchor], n) if anchor < size else _NO_LANES
-            blocks.append((anchor, lanes, inserts, repl))
-            lanes += len(inserts[0]) + len(repl[0])
-            anchor += 1
-        cube, base, active = np.empty((n, lanes, words), dtype=np.uint64), state.copy(), 0
-        joins = {block[0]: block for block in blocks}
-        for index in range(group, size + 1):
-            inserted = replacing = 0
-            if index in joins:
-                _, _, inserts, repl = joins[index]
-                inserted, replacing = len(inserts[0]), len(repl[0])
-                place(cube[:, active:active + inserted + replacing], base,
-                      np.concatenate([inserts[1], repl[1]]), np.concatenate([inserts[2], repl[2]]))
-            if index < size:
-                advance(cube[:, :active + inserted], comparators[index])
-                advance(base, comparators[index])
-                if index < anchor:
-                    advance(state, comparators[index])
-            active += inserted + replacing
-        counts.tried += lanes
-        ok = np.flatnonzero(~failure_mask(prop, list(cube)).any(axis=1)).tolist()
-        starts = [block[1] for block in blocks]
-        for lane in ok:
-            index, first_lane, inserts, repl = blocks[bisect_right(starts, lane) - 1]
-            offset = lane - first_lane
-            if offset < len(inserts[0]):
-                pair = inserts[0][offset]
-                survivors.append((guide.key("insert", index, pair), Change("insert", index, pair)))
-            else:
-                kind, new = repl[0][offset - len(inserts[0])]
-                old = comparators[index]
-                new = old if new is None else new
-                survivors.append((guide.key(kind, index, new), Change(kind, index, new, old)))
-    survivors.sort(key=lambda item: item[0])
-    return survivors
 
 
 # ----------------------------------------------------------------------------- the search
