@@ -18,9 +18,13 @@ turned into a changed circuit and checked on every input with
 :func:`sortcheck.engines.check`; a counterexample becomes a new copy and the
 solver runs again.  Only a circuit the check *proves* is offered, with
 ``verified`` true.  Since every copy is a real input, "no model" means no
-change of at most that many ops repairs the circuit at all.
+op change of at most that many of the searched gates repairs the circuit
+at all (for one change the searched gates are the fan-in of the wrong
+output bits, outside which no single gate can change them; for more, every
+gate of at most four inputs).
 
-Suspects rank single gates, whether or not an op change repairs the circuit:
+Suspects (:mod:`sortcheck.explain.gate_suspects`) rank single gates,
+whether or not an op change repairs the circuit:
 first the gates whose op can change so that every copy is right, then those
 for which some Boolean function of the gate's inputs makes every copy right,
 then by how many failing copies flipping the gate's value alone would fix,
