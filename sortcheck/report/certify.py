@@ -98,6 +98,8 @@ class _Checks:
         self.failures: list[str] = []
         self.checked_by: list[str] = []
         self.files: list[str] = []
+        self.vectors = 0  # 0-1 vectors evaluated again
+        self.lemmas = 0  # DRUP lemmas checked
 
     def by(self, checker: str) -> None:
         if checker not in self.checked_by:
@@ -117,6 +119,7 @@ def _check_calls(material: CertificateMaterial, folder: Path, checks: _Checks) -
             outcome = check_proof(call.dimacs, call.proof, CHECK_SECONDS)
             record["drup"] = outcome.to_json()
             accepted = outcome.accepted
+            checks.lemmas += outcome.lemmas
         except ProofFormatError as error:
             record["drup"] = {"accepted": False, "reason": str(error)}
             accepted = False
@@ -154,6 +157,7 @@ def _check_enumerated(material: CertificateMaterial, network: ComparatorNetwork,
             checks.failures.append(f"{part.label}: the re-evaluation found a failing vector")
         else:
             checks.by(OUR_EVALUATOR)
+            checks.vectors += lanes
         before = previous.get(canonical(part.claim).decode())
         if before is not None:
             record["previous_run"] = "same digest" if before == part.digest else "different digest"
@@ -213,10 +217,11 @@ def _scope(method: str, certified: bool, checks: _Checks) -> str:
         return "the counterexample was run through the netlist again and breaks the property"
     parts = []
     if "drup" in method:
-        parts.append("every SAT call the proof rests on has a DRUP proof that was checked ("
-                     + ", ".join(c for c in checks.checked_by if "drup" in c or c == "drat-trim") + ")")
+        parts.append(f"every SAT call the proof rests on has a DRUP proof that was checked ({checks.lemmas:,} "
+                     f"lemmas; " + ", ".join(c for c in checks.checked_by if "drup" in c or c == "drat-trim") + ")")
     if "enumeration" in method:
-        parts.append("every enumerated set of 0-1 vectors was evaluated again by independent code")
+        parts.append(f"every enumerated set of 0-1 vectors was evaluated again by independent code "
+                     f"({checks.vectors:,} vectors)")
     if method == "order-relations":
         parts.append("the order relations were derived again by independent code")
     trusted = "the 0-1 principle"
