@@ -62,3 +62,21 @@ def test_a_circuit_that_does_not_lift_is_an_error_with_the_reason(tmp_path):
     write_netlist(counting_sorter(4, 2), path)
     status, _, err = cli("draw", path, "--output", tmp_path / "c.svg")
     assert status == 2 and "does not lift to a comparator network" in err
+
+
+def test_check_traces_a_refuted_circuit_that_lifts_on_its_lifted_network(tmp_path):
+    import json
+
+    network = merge_exchange(8)
+    broken = ComparatorNetwork(8, network.comparators[:5] + network.comparators[6:])
+    path = tmp_path / "gates.json"
+    write_netlist(lower_network(broken, 4, style="mux"), path)
+    status, out, _ = cli("check", path, "--format", "json")
+    assert status == 1
+    result = json.loads(out)["results"][0]
+    rows = result["trace"]["values"]
+    values = result["counterexample"]["input"]
+    assert rows[0] == values and rows[-1] == run(broken.comparators, values)  # the reference replays the trace
+    assert result["diagnosis"] is not None
+    status, out, _ = cli("check", path)
+    assert "where, in the lifted comparator network:" in out and "order keys after each layer" in out

@@ -18,9 +18,13 @@ from sortcheck.explain import (
     Diagnosis, Trace, diagnose_network, minimize_network_counterexample, permutation_of, trace_network,
 )
 from sortcheck.explain.gate_minimal import minimize_circuit_counterexample
+from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.trace import fits_in_report
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, GateCircuit, Netlist, Property, check_fits
+
+#: Refuted gate circuits of at most this many gates are lifted, within this many seconds, for a trace.
+LIFT_TRACE_GATES, LIFT_TRACE_SECONDS = 20000, 3.0
 
 #: Exit statuses of ``sortcheck check`` (and ``stats``, which only uses 0 and 2).
 EXIT_PROVED, EXIT_REFUTED, EXIT_ERROR, EXIT_UNKNOWN = 0, 1, 2, 3
@@ -89,7 +93,8 @@ def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeo
                        ) -> tuple[Verdict, Diagnosis | None, Trace | None]:
     """Minimise (unless asked not to), diagnose and trace the counterexample of a refuted network.
 
-    A gate circuit's counterexample is only minimised (fewest one bits over all input words).
+    A gate circuit's counterexample is minimised (fewest one bits over all input words), and diagnosed
+    and traced on its lifted network when the circuit lifts (:func:`_lifted_trace`).
     """
     example = verdict.counterexample
     if isinstance(netlist, GateCircuit) and example is not None and example.domain == "words":
@@ -97,7 +102,7 @@ def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeo
             budget = Budget.of(timeout if timeout is not None else MINIMIZE_SECONDS)
             verdict = replace(verdict, counterexample=minimize_circuit_counterexample(netlist, verdict.prop, example,
                                                                                       budget))
-        return verdict, None, None
+        return (verdict, *_lifted_trace(netlist, verdict, timeout))
     if not isinstance(netlist, ComparatorNetwork) or example is None or example.domain != "0-1":
         return verdict, None, None
     if minimize:
@@ -109,6 +114,26 @@ def explain_refutation(netlist: Netlist, verdict: Verdict, minimize: bool, timeo
         verdict = replace(verdict, counterexample=example)
     trace = trace_network(netlist, example.input) if fits_in_report(netlist) else None
     return verdict, diagnose_network(netlist, verdict.prop, example.input), trace
+
+
+def _lifted_trace(circuit: GateCircuit, verdict: Verdict, timeout: float | None
+                  ) -> tuple[Diagnosis | None, Trace | None]:
+    """Diagnosis and trace of a refuted circuit on its lifted network, when it lifts with its inputs in place.
+
+    A circuit whose compare-and-swap blocks are all sound lifts although it
+    is wrong (a comparator missing or misplaced): the trace then shows the
+    words' order keys after every layer of the lifted network.
+    """
+    if len(circuit.gates) > LIFT_TRACE_GATES:
+        return None, None
+    seconds = LIFT_TRACE_SECONDS if timeout is None else min(timeout, LIFT_TRACE_SECONDS)
+    try:
+        view = lifted_view(circuit, verdict.prop, verdict.counterexample.input, Budget.of(seconds))
+    except SortcheckError:  # it does not lift
+        return None, None
+    if view.lifting.input_channels is not None or not fits_in_report(view.network):
+        return None, None
+    return view.diagnosis, view.trace
 
 
 def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,

@@ -49,7 +49,9 @@ def _count(number: int) -> str:
 def trace_rows(trace: Trace, domain: str) -> list[str]:
     """The trace as one row per layer; ``*`` marks a layer in which a comparator swapped."""
     width = max(len(str(v)) for row in trace.values for v in row)
-    lines = [f"{INDENT}trace   (values after each layer, * where a comparator swapped)"]
+    what = ("values after each layer" if domain == "0-1"
+            else "the words' order keys after each layer of the lifted comparator network")
+    lines = [f"{INDENT}trace   ({what}, * where a comparator swapped)"]
     for layer, row in enumerate(trace.values):
         label = "in" if layer == 0 else f"{layer - 1}{'*' if trace.swaps[layer - 1] else ''}"
         text = "".join(map(str, row)) if domain == "0-1" else " ".join(str(v).rjust(width) for v in row)
@@ -87,7 +89,8 @@ def format_result(result: FileResult) -> list[str]:
             lines.append(f"{INDENT}{'smallest' if example.minimal else 'small (not proved smallest)'} "
                          f"counterexample: {example.ones} {side}")
         if result.diagnosis is not None:
-            lines.append(f"{INDENT}where: {result.diagnosis.describe()}")
+            place = "where" if result.kind == "comparator-network" else "where, in the lifted comparator network"
+            lines.append(f"{INDENT}{place}: {result.diagnosis.describe()}")
         if result.trace is not None and len(example.input) <= TRACE_CHANNELS:
             lines += trace_rows(result.trace, example.domain)
     figures = verdict.figures
