@@ -3,7 +3,7 @@
 Every op's truth table is written out here; circuits are evaluated gate by
 gate in an order found by repeated passes, one input at a time
 (:func:`run_gates`) or on many inputs at once as numpy 0/1 arrays
-(:func:`run_gates_numpy`).  Properties are judged with Python's ``sorted``
+(:func:`run_gates_numpy`, :func:`run_everywhere` for every input).  Properties are judged with Python's ``sorted``
 (``tests/reference.breaks``) or ``numpy.sort``.
 """
 
@@ -74,6 +74,19 @@ def run_gates_numpy(circuit, inputs, order=None):
                      for word in circuit.outputs], axis=1)
 
 
+def input_rows(words, width, start=0, stop=None):
+    """Inputs number ``start`` to ``stop`` (default: the last) as rows of unsigned words; word k is bits k*width.. of the number."""
+    stop = 1 << (words * width) if stop is None else stop
+    index = np.arange(start, stop, dtype=np.int64)
+    return np.stack([(index >> (k * width)) & ((1 << width) - 1) for k in range(words)], axis=1)
+
+
+def run_everywhere(circuit):
+    """``(inputs, outputs)``: every input of ``circuit`` (rows of :func:`input_rows`) and its output words."""
+    inputs = input_rows(circuit.words, circuit.width)
+    return inputs, run_gates_numpy(circuit, inputs)
+
+
 def signed_values(words, width, signed):
     return [w - (1 << width) if signed and w >> (width - 1) else w for w in words]
 
@@ -107,8 +120,7 @@ def sorts_everywhere(circuit, chunk=1 << 16):
     words, width, order = circuit.words, circuit.width, evaluation_order(circuit)
     total = 1 << (words * width)
     for start in range(0, total, chunk):
-        index = np.arange(start, min(total, start + chunk), dtype=np.int64)
-        inputs = np.stack([(index >> (k * width)) & ((1 << width) - 1) for k in range(words)], axis=1)
+        inputs = input_rows(words, width, start, min(total, start + chunk))
         if not (run_gates_numpy(circuit, inputs, order) == np.sort(inputs, axis=1)).all():
             return False
     return True

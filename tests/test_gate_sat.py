@@ -1,11 +1,11 @@
 """The gate sat engine against exhaustive evaluation, for every property, style and the counting family.
 
-The reference evaluates circuits gate by gate with the op table written here
-with ``all``, ``any`` and ``sum`` (independent of the project's evaluator),
-and judges each property with Python's ``sorted`` (``tests/reference.py`` for
-sorts, merges and selects; the median of one or n outputs and the partial
-sorts are defined below in the same way).  Words are 2 bits wide and there
-are at most 4 of them, so every input is evaluated.
+The reference is ``tests/gate_reference.py``: circuits evaluated gate by gate
+with truth tables written out there (independent of the project's evaluator),
+each property judged with Python's ``sorted`` (through ``tests/reference.py``
+for sorts, merges, selects and medians of n outputs; partial sorts and the
+median of one output word are defined there in the same way).  Words are 2
+bits wide and there are at most 4 of them, so every input is evaluated.
 """
 
 from __future__ import annotations
@@ -29,66 +29,20 @@ from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merge
 from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
-import reference
+from gate_reference import breaks_words, evaluation_order, run_gates, signed_values
 
 SAT_ONLY = GateSatEngine(samples=0)
 STYLES = ("and-or", "mux", "xor")
 
 
-# --- the independent reference ------------------------------------------------------------------------------
-
-def reference_op(op, values):
-    if op == "not":
-        return 1 - values[0]
-    if op == "mux":
-        return values[2] if values[0] else values[1]
-    base = {"and": all, "nand": all, "or": any, "nor": any}.get(op)
-    result = int(base(values)) if base else sum(values) % 2
-    return 1 - result if op in ("nand", "nor", "xnor") else result
-
-
-def evaluate(circuit, raw):
-    values = {0: 0, 1: 1}
-    for word, value in zip(circuit.inputs, raw):
-        for i in range(word.width):
-            values[f"{word.name}[{i}]"] = (value >> i) & 1
-    pending = list(circuit.gates)
-    while pending:  # any order in which every source is ready
-        rest = []
-        for gate in pending:
-            if all(s in values for s in gate.inputs):
-                values[gate.out] = reference_op(gate.op, [values[s] for s in gate.inputs])
-            else:
-                rest.append(gate)
-        assert len(rest) < len(pending), "cyclic circuit"
-        pending = rest
-    return [sum(values[bit] << i for i, bit in enumerate(word.bits)) for word in circuit.outputs]
-
-
-def signed_of(value, width):
-    return value - (1 << width) if value >> (width - 1) else value
-
-
-def breaks(prop, inputs, outputs, width):
-    if isinstance(prop, Median):
-        return outputs[(len(outputs) - 1) // 2] != sorted(inputs)[(len(inputs) - 1) // 2]
-    if isinstance(prop, PartialSort):
-        def key(value):
-            return value >> (width - prop.key_bits)  # floor shift: the signed key of a two's complement word
-        if sorted(outputs) != sorted(inputs) or [key(v) for v in outputs] != sorted(key(v) for v in outputs):
-            return True
-        return prop.stable and outputs != sorted(inputs, key=key)  # Python's sort is stable
-    return reference.breaks(prop, list(inputs), list(outputs))
-
+# --- against the independent reference (tests/gate_reference.py) -------------------------------------------
 
 def failures(circuit, prop):
-    w = circuit.width
+    w, order = circuit.width, evaluation_order(circuit)
     for raw in itertools.product(range(1 << w), repeat=circuit.words):
-        outputs = evaluate(circuit, raw)
-        values = [signed_of(v, w) for v in raw] if prop.signed else list(raw)
-        if prop.signed:
-            outputs = [signed_of(v, w) for v in outputs]
-        if breaks(prop, values, outputs, w):
+        values = signed_values(raw, w, prop.signed)
+        outputs = signed_values(run_gates(circuit, raw, order), w, prop.signed)
+        if breaks_words(prop, values, outputs, w):
             yield tuple(values), tuple(outputs)
 
 
@@ -101,9 +55,8 @@ def assert_agrees(circuit, prop, engine=SAT_ONLY):
         assert example.domain == "words" and example.violation
         w = circuit.width
         raw = [v % (1 << w) for v in example.input]
-        outputs = evaluate(circuit, raw)
-        assert list(example.output) == ([signed_of(v, w) for v in outputs] if prop.signed else outputs)
-        assert breaks(prop, list(example.input), list(example.output), w)
+        assert list(example.output) == signed_values(run_gates(circuit, raw), w, prop.signed)
+        assert breaks_words(prop, list(example.input), list(example.output), w)
     else:
         assert verdict.stop is StopReason.COVERED and "thresholds" in verdict.scope or "miter" in verdict.scope
     return verdict
@@ -248,7 +201,7 @@ def test_a_refuted_piece_carries_a_checked_counterexample():
     broken = mutate(lower_network(merge_exchange(3), 3, style="and-or"), "swap", 0, 4)
     verdicts = [SAT_ONLY.check_piece(broken, Sorts(), piece, Budget()) for piece in SAT_ONLY.pieces(broken, Sorts())]
     refuted = [v for v in verdicts if v.status is Status.REFUTED]
-    assert refuted and all(breaks(Sorts(), list(v.counterexample.input), list(v.counterexample.output), 3)
+    assert refuted and all(breaks_words(Sorts(), list(v.counterexample.input), list(v.counterexample.output), 3)
                            for v in refuted)
     assert SAT_ONLY.pieces(broken, PartialSort(key_bits=1, stable=True)) is None
 

@@ -1,7 +1,7 @@
 """Gate circuits lifted to comparator networks, judged against evaluation outside the package.
 
-The references: an evaluator of the gate ops written here (independent of
-``GateCircuit.evaluate`` and of the simulation engine), ``tests/reference.py``
+The references: the gate evaluator of ``tests/gate_reference.py`` (independent
+of ``GateCircuit.evaluate`` and of the simulation engine), ``tests/reference.py``
 (comparators applied value by value, properties judged with ``sorted``) and
 Python's ``sorted`` on every input of small circuits.  A lifting claims
 "the circuit is this network" (after a fixed permutation of the inputs when
@@ -25,6 +25,7 @@ from sortcheck.model import ComparatorNetwork, Gate, Median, Merges, PartialSort
 from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import bitonic, merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
+from gate_reference import evaluation_order, holds_everywhere, run_gates, signed_values
 from reference import breaks, run
 from strategies import networks
 
@@ -33,32 +34,7 @@ STYLES = ("and-or", "mux", "xor")
 FAMILIES = (merge_exchange, bitonic, odd_even_transposition)
 
 
-# --- an evaluator of the netlist ops, independent of the package -------------------------------
-
-def op_value(op, values):
-    if op == "not":
-        return 1 - values[0]
-    if op == "mux":
-        return values[2] if values[0] else values[1]
-    base = {"and": all, "nand": all, "or": any, "nor": any}.get(op)
-    result = int(base(values)) if base else sum(values) % 2
-    return 1 - result if op in ("nand", "nor", "xnor") else result
-
-
-def evaluate(circuit, words):
-    """Output words (unsigned) for input words (unsigned); gates are listed in order in these tests."""
-    signals = {0: 0, 1: 1}
-    for word, value in zip(circuit.inputs, words):
-        for i in range(word.width):
-            signals[f"{word.name}[{i}]"] = (value >> i) & 1
-    for gate in circuit.gates:
-        signals[gate.out] = op_value(gate.op, [signals[source] for source in gate.inputs])
-    return [sum(signals[bit] << i for i, bit in enumerate(output.bits)) for output in circuit.outputs]
-
-
-def as_signed(value, width):
-    return value - (1 << width) if value >> (width - 1) else value
-
+# --- against the independent gate evaluator (tests/gate_reference.py) ------------------------
 
 def every_input(circuit):
     return itertools.product(range(1 << circuit.width), repeat=circuit.words)
@@ -67,21 +43,12 @@ def every_input(circuit):
 def sort_key(prop, width):
     """The order the property compares in: unsigned, two's complement, or the key bits."""
     shift = width - prop.key_bits if isinstance(prop, PartialSort) else 0
-    return lambda value: (as_signed(value, width) if prop.signed else value) >> shift
+    return lambda value: signed_values([value], width, prop.signed)[0] >> shift
 
 
 def circuit_breaks(circuit, prop):
     """Whether some input breaks ``prop``, by evaluating every input and judging with ``sorted``."""
-    width = circuit.width
-    key = sort_key(prop, width)
-    for words in every_input(circuit):
-        outputs = evaluate(circuit, words)
-        if isinstance(prop, PartialSort):  # a permutation whose keys ascend (not stable)
-            if sorted(outputs) != sorted(words) or [key(v) for v in outputs] != sorted(key(v) for v in outputs):
-                return True
-        elif breaks(dataclasses.replace(prop, signed=False), [key(v) for v in words], [key(v) for v in outputs]):
-            return True
-    return False
+    return not holds_everywhere(circuit, prop)
 
 
 def assert_lifting_is_the_circuit(circuit, lifting, prop):
@@ -91,12 +58,13 @@ def assert_lifting_is_the_circuit(circuit, lifting, prop):
     channels = lifting.input_channels or range(circuit.words)
     positions = [(circuit.words - 1) // 2] if isinstance(prop, Median) and len(circuit.outputs) == 1 \
         else range(len(circuit.outputs))
+    order = evaluation_order(circuit)
     for words in every_input(circuit):
         network_input = [None] * circuit.words
         for i, channel in enumerate(channels):
             network_input[channel] = key(words[i])
         expected = run(network.comparators, network_input)
-        assert [key(v) for v in evaluate(circuit, words)] == [expected[p] for p in positions], words
+        assert [key(v) for v in run_gates(circuit, words, order)] == [expected[p] for p in positions], words
 
 
 def same_on_zero_one(first, second):
@@ -148,7 +116,7 @@ def test_lifted_verdict_matches_exhaustive_evaluation(style, signed):
         else:
             example = verdict.counterexample
             raw = [value % 8 for value in example.input]
-            assert [as_signed(v, 3) if signed else v for v in evaluate(circuit, raw)] == list(example.output)
+            assert signed_values(run_gates(circuit, raw), 3, signed) == list(example.output)
             assert breaks(Sorts(), list(example.input), list(example.output))
 
 
@@ -196,7 +164,7 @@ def test_outputs_no_network_gives_in_that_order_are_relabelled_only_for_position
         assert circuit_breaks(shuffled, prop) and verdict.status is Status.REFUTED
         assert "fixed permutation of its input words" in verdict.scope
         example = verdict.counterexample
-        assert evaluate(shuffled, list(example.input)) == list(example.output)
+        assert run_gates(shuffled, list(example.input)) == list(example.output)
         assert breaks(prop, list(example.input), list(example.output))
     merges = lift_circuit(shuffled, Merges(split=2))
     assert not merges.lifted and "depends on input positions" in merges.failure
@@ -250,7 +218,7 @@ def test_unsigned_blocks_are_not_lifted_for_a_signed_property():
     verdict = LiftEngine().check(circuit, Sorts(signed=True), Budget())
     assert verdict.status is Status.REFUTED and "does not lift" in verdict.scope
     example = verdict.counterexample
-    assert [as_signed(v, 3) for v in evaluate(circuit, [v % 8 for v in example.input])] == list(example.output)
+    assert signed_values(run_gates(circuit, [v % 8 for v in example.input]), 3, True) == list(example.output)
     assert breaks(Sorts(), list(example.input), list(example.output))
 
 
@@ -283,7 +251,7 @@ def test_a_circuit_with_one_gate_changed_is_never_proved_when_it_is_broken(style
             assert verdict.status is not Status.PROVED, (index, verdict.scope)
         if verdict.status is Status.REFUTED:
             example = verdict.counterexample
-            assert evaluate(mutant, list(example.input)) == list(example.output)
+            assert run_gates(mutant, list(example.input)) == list(example.output)
             assert breaks(Sorts(), list(example.input), list(example.output))
         elif verdict.status is Status.PROVED:
             assert not wrong

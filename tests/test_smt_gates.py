@@ -1,20 +1,18 @@
 """The smt engine on gate circuits against an exhaustive evaluation that shares nothing with the package.
 
-Every circuit here is small enough to run on all of its inputs: ``evaluate_everywhere`` below
+Every circuit here is small enough to run on all of its inputs: ``tests/gate_reference.py``
 evaluates the gates on every input at once (numpy arrays of 0/1, one per signal, gates taken in
-whatever order their inputs become known), and the properties are judged with
-``tests/reference.py`` (Python's ``sorted``) or, for partial-sort and one-word medians, with the
-definitions written out here with ``sorted``.  The circuits are comparator networks lowered to
-gates in the and-or, mux and xor styles, counting sorters, and their mutants (a gate's op
-flipped, two output bits swapped, a gate input dropped), plus random circuits.
+whatever order their inputs become known, every op's truth table written out there), and the
+properties are judged with ``sorted`` (``tests/reference.py``; partial sorts and one-word
+medians defined in ``gate_reference.breaks_words`` in the same way).  The circuits are
+comparator networks lowered to gates in the and-or, mux and xor styles, counting sorters, and
+their mutants (a gate's op flipped, two output bits swapped, a gate input dropped), plus random
+circuits.
 """
 
 from __future__ import annotations
 
 import dataclasses
-from functools import reduce
-
-import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
@@ -27,75 +25,21 @@ from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merge
 from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
-from reference import breaks
+from gate_reference import OPS, breaks_words, run_everywhere, run_gates, signed_values
 
 ENGINE = SmtEngine()
 
-# The ops of the netlist format, written out independently of sortcheck.model.circuit.
-OPS = {
-    "and": lambda values: reduce(np.logical_and, values),
-    "or": lambda values: reduce(np.logical_or, values),
-    "xor": lambda values: reduce(np.logical_xor, values),
-    "nand": lambda values: ~reduce(np.logical_and, values),
-    "nor": lambda values: ~reduce(np.logical_or, values),
-    "xnor": lambda values: ~reduce(np.logical_xor, values),
-    "not": lambda values: ~values[0],
-    "mux": lambda values: np.where(values[0], values[2], values[1]),
-}
-
-
-def evaluate_everywhere(circuit):
-    """(inputs, outputs): arrays (every input, words) of unsigned word values; input words little-endian in the index."""
-    width, words = circuit.inputs[0].width, len(circuit.inputs)
-    index = np.arange(1 << (width * words), dtype=np.int64)
-    inputs = np.stack([(index >> (width * i)) & ((1 << width) - 1) for i in range(words)], axis=1)
-    signals = {0: np.zeros(index.size, dtype=bool), 1: np.ones(index.size, dtype=bool)}
-    for i, word in enumerate(circuit.inputs):
-        for bit in range(width):
-            signals[f"{word.name}[{bit}]"] = ((inputs[:, i] >> bit) & 1).astype(bool)
-    waiting = list(circuit.gates)
-    while waiting:
-        ready = [gate for gate in waiting if all(source in signals for source in gate.inputs)]
-        assert ready, "the circuit has a cycle"
-        for gate in ready:
-            signals[gate.out] = OPS[gate.op]([signals[source] for source in gate.inputs])
-        waiting = [gate for gate in waiting if gate.out not in signals]
-    outputs = np.stack([sum(signals[bit].astype(np.int64) << j for j, bit in enumerate(word.bits))
-                        for word in circuit.outputs], axis=1)
-    return inputs, outputs
-
-
-def as_signed(values, width):
-    return [value - (1 << width) if value >> (width - 1) else value for value in values]
-
-
 def reference_breaks(prop, inputs, outputs, width):
-    """The property's definition with ``sorted``, on the values the words stand for."""
-    if prop.signed:
-        inputs, outputs = as_signed(inputs, width), as_signed(outputs, width)
-    if isinstance(prop, PartialSort):
-        def key(value):
-            return value >> (width - prop.key_bits)  # the top bits; Python's shift floors negatives
-        if prop.stable:
-            return outputs != sorted(inputs, key=key)  # Python's sort is stable
-        keys = [key(value) for value in outputs]
-        return sorted(outputs) != sorted(inputs) or keys != sorted(keys)
-    if isinstance(prop, Median) and len(outputs) == 1:
-        return outputs[0] != sorted(inputs)[(len(inputs) - 1) // 2]
-    return breaks(prop, inputs, outputs)
+    """The property's definition with ``sorted``, on the values the unsigned words stand for."""
+    values = signed_values(inputs, width, prop.signed)
+    return breaks_words(prop, values, signed_values(outputs, width, prop.signed), width)
 
 
 def reference_holds(circuit, prop):
-    inputs, outputs = evaluate_everywhere(circuit)
+    inputs, outputs = run_everywhere(circuit)
     width = circuit.inputs[0].width
     return not any(reference_breaks(prop, list(map(int, row_in)), list(map(int, row_out)), width)
                    for row_in, row_out in zip(inputs, outputs))
-
-
-def evaluate_one(circuit, values):
-    width = circuit.inputs[0].width
-    index = sum((value % (1 << width)) << (width * i) for i, value in enumerate(values))
-    return [int(value) for value in evaluate_everywhere(circuit)[1][index]]
 
 
 def assert_agrees(circuit, prop):
@@ -108,8 +52,8 @@ def assert_agrees(circuit, prop):
         example = verdict.counterexample
         low, high = (-(1 << (width - 1)), 1 << (width - 1)) if prop.signed else (0, 1 << width)
         assert all(low <= value < high for value in example.input), example
-        computed = evaluate_one(circuit, example.input)
-        assert list(example.output) == (as_signed(computed, width) if prop.signed else computed)
+        computed = run_gates(circuit, [v % (1 << width) for v in example.input])
+        assert list(example.output) == signed_values(computed, width, prop.signed)
         assert reference_breaks(prop, [v % (1 << width) for v in example.input], computed, width), example
     else:
         assert f"{len(circuit.inputs)} " in verdict.scope and f"of {width} bits" in verdict.scope
