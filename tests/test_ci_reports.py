@@ -4,7 +4,6 @@ version rtm.5) and pointing at the right lines."""
 
 from __future__ import annotations
 
-import io
 import json
 import shutil
 from pathlib import Path
@@ -13,10 +12,10 @@ import jsonschema
 import junitparser
 import pytest
 
-from sortcheck.cli import main
 from sortcheck.load import write_netlist
 from sortcheck.model import ComparatorNetwork
 from sortcheck.model.families import build_family
+from cli_runner import run
 
 ROOT = Path(__file__).resolve().parent.parent
 SARIF_SCHEMA = json.loads((ROOT / "tests" / "data" / "sarif-schema-2.1.0.json").read_text(encoding="utf-8"))
@@ -33,13 +32,6 @@ INVALID = """{
   ]
 }
 """
-
-
-def run(*argv, cwd=None, monkeypatch=None):
-    out, err = io.StringIO(), io.StringIO()
-    status = main(list(argv), stdout=out, stderr=err)
-    assert "Traceback" not in out.getvalue() + err.getvalue()
-    return status, out.getvalue(), err.getvalue()
 
 
 @pytest.fixture

@@ -2,25 +2,17 @@
 
 from __future__ import annotations
 
-import io
 import itertools
 import json
 import xml.etree.ElementTree as ElementTree
 from pathlib import Path
 
-from sortcheck.cli import main
 from sortcheck.load import parse_netlist, read_netlist
 from reference import run as evaluate
+from cli_runner import run
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
 BROKEN = CORPUS / "broken" / "merge-exchange-16-missing-comparator.json"
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    status = main([str(a) for a in argv], stdout=out, stderr=err)
-    assert "Traceback" not in out.getvalue() + err.getvalue()
-    return status, out.getvalue(), err.getvalue()
 
 
 def test_build_lowers_a_family_to_a_gate_circuit_that_sorts_every_input():

@@ -2,23 +2,15 @@
 
 from __future__ import annotations
 
-import io
 import json
 from pathlib import Path
 
-from sortcheck.cli import main
 from sortcheck.load import read_netlist
 from reference import run as evaluate
+from cli_runner import run
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
 BROKEN = CORPUS / "broken" / "merge-exchange-16-missing-comparator.json"
-
-
-def run(*argv):
-    out, err = io.StringIO(), io.StringIO()
-    status = main([str(a) for a in argv], stdout=out, stderr=err)
-    assert "Traceback" not in out.getvalue() + err.getvalue()
-    return status, out.getvalue(), err.getvalue()
 
 
 def test_two_sorters_are_equal_and_a_broken_one_differs_on_an_input_it_gets_wrong():
