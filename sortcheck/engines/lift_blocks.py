@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Callable, Sequence
 
 import numpy as np
 
@@ -167,6 +167,15 @@ def evaluate_local(gates: dict, signal: Signal, values: dict) -> int:
     >>> evaluate_local({"t": Gate("t", "xor", ("a[0]", 1))}, "t", {"a[0]": 1})
     0
     """
+    return _evaluate_cone(gates, signal, values, evaluate_op, int)
+
+
+def _evaluate_cone(gates: dict, signal: Signal, values: dict, apply: Callable, constant: Callable):
+    """The value of ``signal`` from ``values`` (filled as a memo), each gate by ``apply(op, inputs)``.
+
+    ``constant`` turns a constant source (0 or 1) into a value; the cone is
+    walked with an explicit stack, so deep cones need no recursion.
+    """
     stack = [signal]
     while stack:
         current = stack[-1]
@@ -178,10 +187,10 @@ def evaluate_local(gates: dict, signal: Signal, values: dict) -> int:
         if missing:
             stack.extend(missing)
             continue
-        values[current] = evaluate_op(gate.op, [source if isinstance(source, int) else values[source]
-                                                for source in gate.inputs])
+        values[current] = apply(gate.op, [constant(source) if isinstance(source, int) else values[source]
+                                          for source in gate.inputs])
         stack.pop()
-    return signal if isinstance(signal, int) else values[signal]
+    return constant(signal) if isinstance(signal, int) else values[signal]
 
 
 def _rows_of_op(op: str, rows: list[np.ndarray]) -> np.ndarray:
@@ -206,21 +215,7 @@ def evaluate_local_rows(gates: dict, signal: Signal, values: dict, lanes: int) -
     True
     """
     constants = {0: np.zeros(lanes, dtype=np.uint64), 1: np.full(lanes, ~np.uint64(0))}
-    stack = [signal]
-    while stack:
-        current = stack[-1]
-        if isinstance(current, int) or current in values:
-            stack.pop()
-            continue
-        gate = gates[current]
-        missing = [source for source in gate.inputs if not isinstance(source, int) and source not in values]
-        if missing:
-            stack.extend(missing)
-            continue
-        values[current] = _rows_of_op(gate.op, [constants[source] if isinstance(source, int) else values[source]
-                                                for source in gate.inputs])
-        stack.pop()
-    return constants[signal] if isinstance(signal, int) else values[signal]
+    return _evaluate_cone(gates, signal, values, _rows_of_op, constants.__getitem__)
 
 
 def min_max_rows(first: np.ndarray, second: np.ndarray, order: BlockOrder) -> tuple[np.ndarray, np.ndarray]:
