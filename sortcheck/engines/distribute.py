@@ -119,12 +119,15 @@ class _Worker:
 
 
 class LocalProcesses:
-    """Run pieces on ``jobs`` worker processes of this machine, started when first needed.
+    """Run pieces on ``jobs`` worker processes of this machine, started for each check.
 
-    Pieces are handed out in piece order, one per idle worker.  When a piece
-    is refuted (and not every piece is needed, as for counting), the
-    workers running later pieces are ended at once; at the deadline every
-    worker still running is ended.
+    The workers are forked when a check's pieces are known, so they inherit
+    what the engine prepared in finding them (for ``enumerate``, the
+    reduction) instead of repeating it (where only ``spawn`` exists, they
+    repeat it).  Pieces are handed out in piece order, one per idle worker.
+    When a piece is refuted (and not every piece is needed, as for
+    counting), the workers running later pieces are ended at once; at the
+    deadline every worker still running is ended.
     """
 
     def __init__(self, jobs: int):
@@ -139,6 +142,7 @@ class LocalProcesses:
         return self._idle.pop() if self._idle else _Worker(self._context)
 
     def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+        self.close()  # workers of an earlier check lack what this check's engine prepared
         verdicts: list[Verdict | None] = [None] * len(jobs)
         waiting = deque(range(len(jobs)))
         attempts = [0] * len(jobs)
