@@ -26,10 +26,16 @@ BLOCK_LANES = 1 << 22
 
 
 def _repeat(unit: int, period: int, lanes: int) -> int:
-    """``unit`` (``period`` bits) repeated to fill ``lanes`` bits (``lanes`` a multiple of ``period``)."""
-    if period >= lanes:
-        return unit & ((1 << lanes) - 1)
-    return unit * (((1 << lanes) - 1) // ((1 << period) - 1))
+    """``unit`` (``period`` bits) repeated to fill ``lanes`` bits, by doubling (shifts, no big multiplication).
+
+    >>> bin(_repeat(0b01, 2, 6))
+    '0b10101'
+    """
+    pattern, length = unit, period
+    while length < lanes:
+        pattern |= pattern << length
+        length *= 2
+    return pattern & ((1 << lanes) - 1)
 
 
 def all_inputs(channels: int, start: int, lanes: int) -> list[int]:
