@@ -26,6 +26,7 @@ from __future__ import annotations
 
 import os
 import random
+import resource
 import subprocess
 import sys
 import time
@@ -81,16 +82,48 @@ def timed(function):
     return result, time.perf_counter() - started
 
 
+def cpu_seconds() -> tuple[float, float]:
+    """Processor time of this process, and of its ended children (local workers are ended after each check)."""
+    own, children = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
+    return own.ru_utime + own.ru_stime, children.ru_utime + children.ru_stime
+
+
 def whole_and_split(engine, network, options, runner, pieces=None):
-    """(seconds whole in this process, seconds split on ``runner``, pieces); the two verdicts must agree."""
+    """(seconds whole in this process, seconds split on ``runner`` (finding the pieces included), pieces).
+
+    The two verdicts must agree.
+    For local processes it also notes the processor time of both runs (the
+    work splitting adds, which load does not hide) and the speed-up they
+    project for 2 idle cores: whole / (here + workers / 2).
+    """
+    enumeration_pieces._layouts.clear()  # each run does its own reduction
+    before = cpu_seconds()
     whole, whole_seconds = timed(lambda: engine.check(network, Sorts(), Budget(), options))
-    pieces = pieces or engine.pieces(network, Sorts(), options)
+    whole_cpu = cpu_seconds()[0] - before[0]
+    enumeration_pieces._layouts.clear()
+    before = cpu_seconds()
+
+    def split_run():
+        found = pieces or engine.pieces(network, Sorts(), options)
+        return found, found and run_pieces(engine, network, Sorts(), found, Budget(), options, runner)
+
+    (pieces, split), split_seconds = timed(split_run)
     if not pieces:
         return whole_seconds, None, 0
-    split, split_seconds = timed(lambda: run_pieces(engine, network, Sorts(), pieces, Budget(), options, runner))
+    if isinstance(runner, LocalProcesses):
+        runner.close()
+        after = cpu_seconds()
+        parent, workers = after[0] - before[0], after[1] - before[1]
+        CPU_NOTES.append(f"{network.name}: processor time {whole_cpu:.2f} s whole; split {parent:.2f} s here "
+                         f"(finding the pieces, waiting) + {workers:.2f} s in the workers = "
+                         f"{(parent + workers) / whole_cpu:.2f}x the work; on 2 idle cores about "
+                         f"{whole_cpu / (parent + workers / 2):.2f}x faster")
     assert split.status == whole.status and split.counterexample == whole.counterexample
     assert split.figures.get("failing_inputs") == whole.figures.get("failing_inputs")
     return whole_seconds, split_seconds, len(pieces)
+
+
+CPU_NOTES: list[str] = []
 
 
 def row(label: str, whole: float, split: float | None, pieces: int, where: str = "2 processes") -> None:
@@ -191,6 +224,7 @@ def main() -> None:
         gate_rows(quick, runner)
         cutoff_rows(runner)
         print(f"\nlocal processes: overhead per piece {overhead_per_piece(runner) * 1000:.1f} ms")
+    print("\n" + "\n".join(CPU_NOTES))
     dask_rows(quick)
     print(f"\nsortcheck check corpus/merge-exchange-24.json, new process, default --jobs: {cli_start():.2f} s")
     print(f"\n{load()}; two busy processes: {capacity():.2f}x of one")
