@@ -304,3 +304,11 @@ def test_a_proof_check_out_of_time_is_rejected_not_accepted():
     clauses, text = sorter_cnf(build_family("bitonic", 32))
     outcome = check_proof(text, glucose_proof(clauses), seconds=0.0)
     assert not outcome.accepted and "ran out" in outcome.reason
+
+
+def test_an_unwritable_certificate_directory_leaves_the_verdict_uncertified(tmp_path):
+    blocker = tmp_path / "file"
+    blocker.write_text("not a directory")
+    status, results = json_results(tmp_path, str(CORPUS / "insertion-8.json"), "--certify", str(blocker / "sub"))
+    assert status == 0 and results[0]["certified"] is False
+    assert "could not be written" in results[0]["certificate"]["scope"]

@@ -287,4 +287,10 @@ def certify_file_result(result: FileResult, root: str | Path, words: int | None 
     netlist = None
     if result.verdict is not None:
         netlist = read_netlist(result.path, words, width)
-    return replace(result, certification=certify_result(netlist, result.path, result.verdict, Path(root)))
+    try:
+        certification = certify_result(netlist, result.path, result.verdict, Path(root))
+    except OSError as error:
+        certification = {"certified": False, "certificate": {
+            "method": "none", "files": [], "checked_by": [],
+            "scope": f"not certified: the certificate could not be written to {root} ({error.strerror or error})"}}
+    return replace(result, certification=certification)
