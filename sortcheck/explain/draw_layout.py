@@ -19,6 +19,7 @@ from collections import Counter
 from dataclasses import dataclass
 from typing import Sequence
 
+from sortcheck.explain.trace import layer_members, trace_network
 from sortcheck.model import ComparatorNetwork, Median, Merges, Property, Selects, Sorts
 from sortcheck.model.semantics import applies
 
@@ -52,37 +53,17 @@ def sub_columns(spans: Sequence[tuple[int, int]]) -> list[int]:
     return result
 
 
-def layer_members(network: ComparatorNetwork) -> list[list[int]]:
-    """Indices of the comparators of each greedy layer, in network order.
-
-    >>> layer_members(ComparatorNetwork(4, ((0, 1), (2, 3), (1, 2), (0, 1))))
-    [[0, 1], [2], [3]]
-    """
-    members: list[list[int]] = [[] for _ in range(network.depth)]
-    for index, layer in enumerate(network.layer_of):
-        members[layer].append(index)
-    return members
-
-
 def run_by_layers(network: ComparatorNetwork, values: Sequence) -> tuple[list[tuple], set[int]]:
     """The values on the channels before the first layer and after every layer, and who swapped.
 
     Comparators of one layer touch different channels, so running the layers
-    in turn computes what the network computes.
+    in turn computes what the network computes (:func:`trace_network`).
 
     >>> run_by_layers(ComparatorNetwork(3, ((0, 1), (1, 2))), [2, 1, 0])
     ([(2, 1, 0), (1, 2, 0), (1, 0, 2)], {0, 1})
     """
-    wires = list(values)
-    states, swapped = [tuple(wires)], set()
-    for members in layer_members(network):
-        for index in members:
-            a, b = network.comparators[index]
-            if wires[a] > wires[b]:
-                wires[a], wires[b] = wires[b], wires[a]
-                swapped.add(index)
-        states.append(tuple(wires))
-    return states, swapped
+    trace = trace_network(network, values)
+    return list(trace.values), {index for layer in trace.swaps for index in layer}
 
 
 def wrong_outputs(prop: Property, inputs: Sequence, outputs: Sequence) -> set[int]:

@@ -26,6 +26,18 @@ class Trace:
         return {"values": [list(row) for row in self.values], "swaps": [list(row) for row in self.swaps]}
 
 
+def layer_members(network: ComparatorNetwork) -> list[list[int]]:
+    """Indices of the comparators of each greedy layer, in network order.
+
+    >>> layer_members(ComparatorNetwork(4, ((0, 1), (2, 3), (1, 2), (0, 1))))
+    [[0, 1], [2], [3]]
+    """
+    members: list[list[int]] = [[] for _ in range(network.depth)]
+    for index, layer in enumerate(network.layer_of):
+        members[layer].append(index)
+    return members
+
+
 def trace_network(network: ComparatorNetwork, inputs: Sequence[int]) -> Trace:
     """Follow ``inputs`` through the greedy layers of ``network``.
 
@@ -37,10 +49,7 @@ def trace_network(network: ComparatorNetwork, inputs: Sequence[int]) -> Trace:
     """
     wires = list(inputs)
     values, swaps = [tuple(wires)], []
-    layer_members: list[list[int]] = [[] for _ in range(network.depth)]
-    for index, layer in enumerate(network.layer_of):
-        layer_members[layer].append(index)
-    for members in layer_members:
+    for members in layer_members(network):
         swapped = []
         for index in members:
             a, b = network.comparators[index]
