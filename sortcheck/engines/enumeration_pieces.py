@@ -34,15 +34,19 @@ from sortcheck.engines.reduction import MAX_CHANNELS, ReducedSpace, merge_groups
 from sortcheck.model import ComparatorNetwork, Merges, Property
 from sortcheck.model.semantics import violation
 
-#: Estimated evaluation seconds below which a check is run whole, in one process (starting two worker
-#: processes and handing out pieces costs about 0.05 s; below this the gain is lost in the noise).
+#: Estimated evaluation seconds below which a check is run whole, in one process.  Measured with
+#: ``tests/benchmarks/bench_distribute.py`` (processor time, so load does not hide it): merge exchange
+#: without the reduction splits into 8 pieces on 2 processes at a projected 0.96x at an estimate of 0.24 s
+#: (25 channels), 1.24x at 0.51 s (26) and 1.53x at 1.08 s (27); forking the workers and handing out
+#: pieces costs about 0.05 s, and each piece about 2 ms.
 SPLIT_SECONDS = 0.5
 #: Estimated seconds of evaluation per piece, and the most pieces of one check.
 PIECE_SECONDS = 0.25
 MAX_PIECES = 256
-#: Word operations (one comparator on 64 vectors) per second of the numpy evaluator over a whole check,
-#: measured on this project's machine (merge exchange 28 without the reduction, a random 40-channel network
-#: counted: 3e8 to 3.5e8); counting costs about a third more, and compiled kernels are about 10x faster.
+#: Word operations (one comparator on 64 vectors) per second of the numpy evaluator over a whole check, in
+#: wall time on this project's machine under its usual load (merge exchange 28 without the reduction, a
+#: random 40-channel network counted: 3e8 to 3.5e8; about 1e9 in processor time); counting costs about a
+#: third more, and compiled kernels are about 10x faster.
 NUMPY_WORD_OPERATIONS = 3e8
 COUNTING_COST = 1.3
 COMPILED_SPEEDUP = 10.0
