@@ -1,9 +1,9 @@
 """Gate circuits built from comparator networks and the counting sorter, against Python's ``sorted``.
 
 Circuits are run two ways: with ``GateCircuit.evaluate`` (the model's own
-evaluator) and with an evaluator written here on numpy arrays, which runs a
-circuit on every input of a small space at once and shares no code with the
-model's (the two are compared on random circuits first).  Expected outputs
+evaluator) and with the numpy evaluator of ``tests/gate_reference.py``, which
+runs a circuit on every input of a small space at once and shares no code with
+the model's (the two are compared on random circuits first).  Expected outputs
 come from Python's ``sorted`` (signed: the words read as two's complement),
 from ``ComparatorNetwork.apply`` for networks that do not sort, and, for the
 large random samples of the counting sorter, from ``numpy.sort`` beside
@@ -14,12 +14,13 @@ from __future__ import annotations
 
 import random
 import re
-from functools import lru_cache, reduce
+from functools import lru_cache
 
 import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
+from gate_reference import OPS, input_rows, run_gates_numpy
 from sortcheck.errors import UsageError
 from sortcheck.load import dump_netlist, parse_netlist
 from sortcheck.model import ComparatorNetwork, Gate, GateCircuit, Merges, OutputWord, PartialSort, Selects, Sorts, Word
@@ -33,41 +34,6 @@ FAMILY_CASES = [(family, n) for family in ("merge-exchange", "bitonic", "odd-eve
                 for n in range(2, 7) if family != "bitonic" or n in (2, 4)]
 EXHAUSTIVE_BITS = 16  # inputs spaces of at most 2^16 are run completely
 SAMPLE = 3000
-
-
-# --- an evaluator on numpy arrays, independent of GateCircuit.evaluate -------------------------
-
-_NUMPY_OPS = {
-    "and": lambda xs: reduce(np.bitwise_and, xs),
-    "or": lambda xs: reduce(np.bitwise_or, xs),
-    "xor": lambda xs: reduce(np.bitwise_xor, xs),
-    "nand": lambda xs: ~reduce(np.bitwise_and, xs),
-    "nor": lambda xs: ~reduce(np.bitwise_or, xs),
-    "xnor": lambda xs: ~reduce(np.bitwise_xor, xs),
-    "not": lambda xs: ~xs[0],
-    "mux": lambda xs: np.where(xs[0], xs[2], xs[1]),
-}
-
-
-def run_all(circuit: GateCircuit, inputs: np.ndarray) -> np.ndarray:
-    """Outputs (rows x output words, unsigned) for input rows (rows x input words, unsigned)."""
-    rows = inputs.shape[0]
-    signals = {0: np.zeros(rows, bool), 1: np.ones(rows, bool)}
-    for column, word in enumerate(circuit.inputs):
-        for j in range(word.width):
-            signals[f"{word.name}[{j}]"] = ((inputs[:, column] >> j) & 1).astype(bool)
-    for gate in circuit.gate_order:
-        signals[gate.out] = _NUMPY_OPS[gate.op]([signals[s] for s in gate.inputs])
-    out = np.zeros((rows, len(circuit.outputs)), np.int64)
-    for column, word in enumerate(circuit.outputs):
-        for j, bit in enumerate(word.bits):
-            out[:, column] |= signals[bit].astype(np.int64) << j
-    return out
-
-
-def all_inputs(words: int, width: int) -> np.ndarray:
-    index = np.arange(1 << (words * width), dtype=np.int64)
-    return np.stack([(index >> (i * width)) & ((1 << width) - 1) for i in range(words)], axis=1)
 
 
 def random_inputs(words: int, width: int, rows: int, seed: int) -> np.ndarray:
@@ -87,14 +53,14 @@ def sorted_rows(rows: list[list[int]], width: int, signed: bool) -> np.ndarray:
 
 
 @lru_cache(maxsize=None)
-def sorted_all_inputs(words: int, width: int, signed: bool) -> np.ndarray:
-    return sorted_rows(all_inputs(words, width).tolist(), width, signed)
+def sorted_input_rows(words: int, width: int, signed: bool) -> np.ndarray:
+    return sorted_rows(input_rows(words, width).tolist(), width, signed)
 
 
 def inputs_and_sorted(words: int, width: int, signed: bool, seed: int) -> tuple[np.ndarray, np.ndarray]:
     """Every input when there are at most 2^16, else a random sample; with their sorted outputs."""
     if words * width <= EXHAUSTIVE_BITS:
-        return all_inputs(words, width), sorted_all_inputs(words, width, signed)
+        return input_rows(words, width), sorted_input_rows(words, width, signed)
     sample = random_inputs(words, width, SAMPLE, seed)
     return sample, sorted_rows(sample.tolist(), width, signed)
 
@@ -104,7 +70,7 @@ def random_circuit(rng: random.Random) -> GateCircuit:
     signals = ["a[0]", "a[1]", "a[2]", "b[0]", "b[1]", 0, 1]
     gates = []
     for k in range(30):
-        op = rng.choice(sorted(_NUMPY_OPS))
+        op = rng.choice(sorted(OPS))
         arity = 1 if op == "not" else 3 if op == "mux" else rng.randint(2, 4)
         gates.append(Gate(f"g{k}", op, tuple(rng.choice(signals) for _ in range(arity))))
         signals.append(f"g{k}")
@@ -117,7 +83,7 @@ def test_numpy_evaluator_agrees_with_gate_circuit_evaluate():
     for _ in range(20):
         circuit = random_circuit(rng)
         rows = [[rng.randrange(8), rng.randrange(4)] for _ in range(40)]
-        assert run_all(circuit, np.array(rows)).tolist() == [circuit.evaluate(row) for row in rows]
+        assert run_gates_numpy(circuit, np.array(rows)).tolist() == [circuit.evaluate(row) for row in rows]
 
 
 # --- lowered sorting networks sort --------------------------------------------------------------
@@ -130,7 +96,7 @@ def test_lowered_families_sort_every_width_signed_and_unsigned(family, n, style)
         for signed in (False, True):
             circuit = lower_network(network, width, style=style, signed=signed)
             inputs, expected = inputs_and_sorted(n, width, signed, seed=n * 10 + width)
-            assert np.array_equal(run_all(circuit, inputs), expected), (circuit.name, signed)
+            assert np.array_equal(run_gates_numpy(circuit, inputs), expected), (circuit.name, signed)
 
 
 @pytest.mark.parametrize("style", STYLES)
@@ -138,7 +104,7 @@ def test_lowered_families_sort_every_width_signed_and_unsigned(family, n, style)
 def test_gate_circuit_evaluate_on_every_input_of_a_lowered_network(style, signed):
     width = 3
     circuit = lower_network(merge_exchange(4), width, style=style, signed=signed)
-    rows = all_inputs(4, width).tolist()
+    rows = input_rows(4, width).tolist()
     expected = sorted_rows(rows, width, signed).tolist()
     assert [circuit.evaluate(row) for row in rows] == expected
 
@@ -169,7 +135,7 @@ def test_reversed_comparators_sort_descending():
     for style in STYLES:
         circuit = lower_network(network, 2, style=style)
         assert circuit.claim == Sorts(order="descending")
-        for row in all_inputs(3, 2).tolist():
+        for row in input_rows(3, 2).tolist():
             assert circuit.evaluate(row) == sorted(row, reverse=True)
 
 
@@ -198,8 +164,8 @@ def test_key_bits_sort_by_the_top_bits_and_keep_the_words(family, n, style):
             for signed in (False, True):
                 circuit = lower_network(network, width, style=style, signed=signed, key_bits=key_bits)
                 assert circuit.claim == PartialSort(key_bits=key_bits, signed=signed)
-                inputs = all_inputs(n, width) if n * width <= 12 else random_inputs(n, width, SAMPLE, 3)
-                outputs = run_all(circuit, inputs)
+                inputs = input_rows(n, width) if n * width <= 12 else random_inputs(n, width, SAMPLE, 3)
+                outputs = run_gates_numpy(circuit, inputs)
                 # a permutation of the input words ...
                 assert np.array_equal(np.sort(outputs, axis=1), np.sort(inputs, axis=1))
                 # ... whose keys ascend (comparator networks are not stable, so nothing more is asked)
@@ -224,7 +190,7 @@ def test_lowered_network_missing_a_comparator_fails_on_some_input(style):
     for missing in range(network.size):
         broken = ComparatorNetwork(4, network.comparators[:missing] + network.comparators[missing + 1:])
         circuit = lower_network(broken, 2, style=style)
-        failing = next((row for row in all_inputs(4, 2).tolist() if circuit.evaluate(row) != sorted(row)), None)
+        failing = next((row for row in input_rows(4, 2).tolist() if circuit.evaluate(row) != sorted(row)), None)
         assert failing is not None, f"comparator {missing} removed, yet every input comes out sorted"
         assert circuit.evaluate(failing) == broken.apply(failing)
 
@@ -286,8 +252,8 @@ def test_counting_sorter_small_sizes_on_every_input(signed):
             if words * width > EXHAUSTIVE_BITS:
                 continue
             circuit = counting_sorter(words, width, signed=signed)
-            assert np.array_equal(run_all(circuit, all_inputs(words, width)),
-                                  sorted_all_inputs(words, width, signed)), circuit.name
+            assert np.array_equal(run_gates_numpy(circuit, input_rows(words, width)),
+                                  sorted_input_rows(words, width, signed)), circuit.name
 
 
 def check_counting_sorter_on_a_sample(words: int, width: int, signed: bool, rows: int) -> None:
@@ -297,7 +263,7 @@ def check_counting_sorter_on_a_sample(words: int, width: int, signed: bool, rows
     special = [[v] * words for v in range(values)]
     special += [[i % values for i in range(words)], [(-i - 1) % values for i in range(words)]]
     inputs = np.concatenate([np.array(special), random_inputs(words, width, rows, seed=words * width)])
-    outputs = run_all(circuit, inputs)
+    outputs = run_gates_numpy(circuit, inputs)
     assert np.array_equal(outputs[:20000], sorted_rows(inputs[:20000].tolist(), width, signed))
     ranks = np.where(inputs >= values // 2, inputs - values, inputs) if signed else inputs
     expected = np.take_along_axis(inputs, np.argsort(ranks, axis=1, kind="stable"), axis=1)
@@ -347,7 +313,7 @@ def test_written_and_read_back_the_circuit_is_equal(circuit):
     read = parse_netlist(dump_netlist(circuit), source="lowered.json")
     assert read == circuit and read.claim == circuit.claim
     inputs = random_inputs(circuit.words, circuit.width, 500, seed=1)
-    assert np.array_equal(run_all(read, inputs), run_all(circuit, inputs))
+    assert np.array_equal(run_gates_numpy(read, inputs), run_gates_numpy(circuit, inputs))
     rows = inputs[:50].tolist()
     assert [read.evaluate(row) for row in rows] == [circuit.evaluate(row) for row in rows]
 
