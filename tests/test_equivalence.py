@@ -123,3 +123,14 @@ def test_netlists_of_different_shapes_are_refused_with_both_names():
     with pytest.raises(UsageError, match="3 bits"):
         equivalent(lower_network(build_family("insertion", 4), 2), lower_network(build_family("insertion", 4), 3),
                    Budget())
+
+
+def test_two_large_sorters_are_equal_because_both_are_proved_to_sort():
+    # Merge exchange and bitonic sorters sort (Knuth, TAOCP vol. 3, 5.3.4), so both compute sorted order.
+    first, second = build_family("merge-exchange", 64), build_family("bitonic", 64)
+    answer = equivalent(first, second, Budget())
+    assert answer.status == Status.PROVED and answer.method == "both proved to sort"
+    broken = ComparatorNetwork(64, second.comparators[:100] + second.comparators[101:])
+    answer = equivalent(first, broken, Budget())
+    assert answer.status == Status.REFUTED
+    assert run(broken.comparators, list(answer.input)) != sorted(answer.input) == list(answer.outputs[0])

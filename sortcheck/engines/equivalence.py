@@ -48,6 +48,9 @@ from sortcheck.errors import UsageError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Sorts
 from sortcheck.model.lowering import lower_network
 
+#: Networks on more channels than this are first checked for sorting (see :func:`_both_sort`).
+SORTER_SHORTCUT_CHANNELS = 12
+
 #: Random simulation rounds (blocks of bit-parallel inputs) before the miter is solved.
 SIMULATION_BLOCKS = 4
 
@@ -168,7 +171,7 @@ def _differs_as_words(first: GateCircuit, second: GateCircuit, zero_one, signed:
 
 def _as_lifted(first: GateCircuit, second: GateCircuit, answer: Equivalence,
                networks: tuple[ComparatorNetwork, ComparatorNetwork], signed: bool, started: float) -> Equivalence:
-    method = "lifted networks, 0-1 miter (SAT)"
+    method = f"lifted networks, {answer.method}"
     figures = {**answer.figures, "lifted_comparators": [networks[0].size, networks[1].size]}
     order = "two's complement" if signed else "unsigned"
     if answer.status is Status.REFUTED:
@@ -176,8 +179,8 @@ def _as_lifted(first: GateCircuit, second: GateCircuit, answer: Equivalence,
     if answer.status is Status.UNKNOWN:
         return dataclasses.replace(answer, method=method, figures=figures, seconds=time.perf_counter() - started)
     scope = (f"both circuits were proved, block by block, to be comparator networks on {first.words} words of "
-             f"{first.width} bits ({order} min/max blocks), and the two networks give the same outputs on every 0-1 "
-             "input, hence on every input of any values")
+             f"{first.width} bits ({order} min/max blocks), and the two networks compute the same function: "
+             f"{answer.scope}")
     return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
 
 
@@ -190,6 +193,42 @@ def _network_outputs(builder: CnfBuilder, network: ComparatorNetwork, inputs: Se
 
 
 def _networks(first: ComparatorNetwork, second: ComparatorNetwork, budget: Budget, started: float) -> Equivalence:
+    if first.channels > SORTER_SHORTCUT_CHANNELS:
+        sorted_answer = _both_sort(first, second, budget, started)
+        if sorted_answer is not None:
+            return sorted_answer
+    return _network_miter(first, second, budget, started)
+
+
+def _both_sort(first: ComparatorNetwork, second: ComparatorNetwork, budget: Budget, started: float
+               ) -> Equivalence | None:
+    """Settle two large networks through sorting: two sorters compute the same function (sorted order).
+
+    A miter of two different sorting networks is as hard as proving that they
+    sort, which the comparator engines do along the networks' structure.  So
+    each is checked for ``sorts``: both proved means equal; one proved and the
+    other refuted means different, told apart by the refuted one's
+    counterexample.  Otherwise (neither sorts, or undecided) None: the miter decides.
+    """
+    from sortcheck.engines import check  # the registry imports this module
+
+    verdicts = [check(network, Sorts(), timeout=budget.remaining()) for network in (first, second)]
+    statuses = [verdict.status for verdict in verdicts]
+    figures = {"sorts": [f"{verdict.status.value} by {verdict.engine}" for verdict in verdicts]}
+    if statuses == [Status.PROVED, Status.PROVED]:
+        scope = (f"both networks were proved to sort every input of {first.channels} channels "
+                 f"({verdicts[0].engine}, {verdicts[1].engine}), so both compute the sorted order of any input")
+        return Equivalence(Status.PROVED, "both proved to sort", scope, time.perf_counter() - started,
+                           figures=figures)
+    if Status.PROVED in statuses and Status.REFUTED in statuses:
+        example = verdicts[statuses.index(Status.REFUTED)].counterexample
+        return _differ(first, second, tuple(example.input), "one proved to sort, the other refuted", started,
+                       figures)
+    return None
+
+
+def _network_miter(first: ComparatorNetwork, second: ComparatorNetwork, budget: Budget, started: float
+                   ) -> Equivalence:
     builder = CnfBuilder()
     inputs = [builder.variable(("input", channel)) for channel in range(first.channels)]
     pairs = zip(_network_outputs(builder, first, inputs), _network_outputs(builder, second, inputs))
