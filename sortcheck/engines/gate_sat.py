@@ -23,6 +23,12 @@ The check splits into *pieces*, ranges of thresholds in increasing order
 (:meth:`GateSatEngine.pieces`), that :meth:`GateSatEngine.check_piece` checks
 one at a time; together they cover what :meth:`GateSatEngine.check` covers.
 
+With ``Options(certify=True)`` every question is solved as a self-contained
+CNF of its own (the threshold fixed by unit clauses, not assumptions) with
+DRUP proof logging, and the proved verdict carries the CNFs, the proofs and
+their claims (:mod:`sortcheck.engines.gate_certificates`); such a check does
+not split.  Without it nothing changes: one incremental solver, assumptions.
+
 >>> from sortcheck.model import Sorts
 >>> from sortcheck.model.counting import counting_sorter
 >>> verdict = GateSatEngine().check(counting_sorter(4, 2), Sorts(), Budget())
@@ -34,13 +40,17 @@ from __future__ import annotations
 
 import threading
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field, replace
 
 from pysat.solvers import Solver
 
-from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict, refused_verdict
+from sortcheck.engines.base import (Budget, CertificateMaterial, Options, Status, StopReason, UnsatCall, Verdict,
+                                    refused_verdict)
+from sortcheck.engines.gate_certificates import claim_clauses, claim_comments, claim_text, question_claim
 from sortcheck.engines.gate_simulation import SEED, counterexample_of, quick_refute
-from sortcheck.engines.gate_spec import ThresholdQuestion, refusal_of, threshold_question
+from sortcheck.engines.gate_spec import ThresholdQuestion, refusal_of, threshold_question, variable_comments
+from sortcheck.engines.network_cnf import dimacs
+from sortcheck.engines.sat import PROOF_SOLVER, PROOF_SOLVERS
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
@@ -73,6 +83,9 @@ class _Tally:
     thresholds_proved: int = 0
     solver_seconds: float = 0.0
     simulated: bool = False
+    #: Certificate material, gathered only with ``Options(certify=True)``: one record per proved question.
+    certify: bool = False
+    calls: list = field(default_factory=list)
 
 
 def _solve(solver: Solver, assumptions: list[int], budget: Budget) -> bool | None:
@@ -146,7 +159,7 @@ class GateSatEngine:
         if refused is not None:
             return refused
         circuit: GateCircuit = netlist  # type: ignore[assignment]
-        tally = _Tally(simulated=self.samples > 0)
+        tally = _Tally(simulated=self.samples > 0, certify=options.certify)
         if self.samples:
             found = quick_refute(circuit, prop, budget, self.samples, self.seed)
             if found is not None:
@@ -166,15 +179,17 @@ class GateSatEngine:
     def pieces(self, netlist: Netlist, prop: Property, options: Options = Options()) -> list[dict] | None:
         """Threshold ranges in increasing order, ``{"kind": "thresholds", "low": a, "high": b}`` (inclusive).
 
-        None when the check does not split (a refused check, or a stable
-        partial sort, which is one miter).
+        None when the check does not split (a refused check, a stable
+        partial sort, which is one miter, or a check that gathers certificate
+        material, whose questions are recorded by one engine run).
 
         >>> from sortcheck.model import Sorts
         >>> from sortcheck.model.counting import counting_sorter
         >>> GateSatEngine().pieces(counting_sorter(3, 3, signed=True), Sorts(signed=True))[:2]
         [{'kind': 'thresholds', 'low': -4, 'high': -3}, {'kind': 'thresholds', 'low': -2, 'high': -1}]
         """
-        if self.refusal(netlist, prop, options) is not None or (isinstance(prop, PartialSort) and prop.stable):
+        if (self.refusal(netlist, prop, options) is not None or (isinstance(prop, PartialSort) and prop.stable)
+                or options.certify):
             return None
         width = netlist.width  # type: ignore[union-attr]
         low = -(1 << (width - 1)) if prop.signed else 0
@@ -200,7 +215,7 @@ class GateSatEngine:
         low, high = int(piece["low"]), int(piece["high"])
         if not lowest <= low <= high <= highest:
             raise ValueError(f"threshold range {low}..{high} is not inside {lowest}..{highest}")
-        verdict = self._run(circuit, prop, question, (low, high), budget, _Tally(), started)
+        verdict = self._run(circuit, prop, question, (low, high), budget, _Tally(certify=options.certify), started)
         verdict.figures["shared"] = list(SHARED_FIGURES)  # the same in every piece: not summed when combined
         return verdict
 
@@ -236,6 +251,8 @@ class GateSatEngine:
         calls, mode = self._questions(question, span)
         clauses = question.clauses()
         figures = self._figures(question, clauses, mode, tally)
+        if tally.certify:
+            return self._run_certified(circuit, prop, question, calls, (span, mode), budget, tally, started, figures)
         done: list[tuple[int, int]] = []
         with Solver(name=self.solver, bootstrap_with=clauses) as solver:
             for number, (values, assumptions) in enumerate(calls):
@@ -252,6 +269,47 @@ class GateSatEngine:
                 done.append(values)
                 tally.thresholds_proved += values[1] - values[0] + 1
         return self._proved(circuit, prop, question, span, mode, tally, started, figures)
+
+    def _run_certified(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion, calls: list,
+                       how: tuple, budget: Budget, tally: _Tally, started: float, figures: dict) -> Verdict:
+        """:meth:`_run` with each question solved as its own CNF with DRUP proof logging, recorded when proved."""
+        span, mode = how
+        names = variable_comments(question, circuit, question.outputs)
+        done: list[tuple[int, int]] = []
+        for number, (values, assumptions) in enumerate(calls):
+            budget.report(number, len(calls), "threshold SAT, with proofs")
+            kind = ("miter" if question.method == "miter" else "fixed" if mode == "per-threshold"
+                    else "range" if assumptions else "free")
+            claim = question_claim(circuit, prop, question, kind, values)
+            clauses = claim_clauses(question, claim)
+            began = time.perf_counter()
+            answer, model, proof = self._solve_with_proof(clauses, budget)
+            tally.solver_seconds += time.perf_counter() - began
+            tally.sat_calls += 1
+            tally.thresholds_asked += values[1] - values[0] + 1 if question.method == "threshold" else 0
+            if answer is None:
+                return self._unknown(circuit, prop, question, done, len(calls), tally, started, figures)
+            if answer:
+                return self._refuted(circuit, prop, question, model, tally, started, figures)
+            text = dimacs(clauses, question.builder.pool, claim_comments(claim, names))
+            tally.calls.append(UnsatCall(claim_text(claim), text, proof, self._proof_solver(), claim))
+            done.append(values)
+            tally.thresholds_proved += values[1] - values[0] + 1
+        return self._proved(circuit, prop, question, span, mode, tally, started, figures)
+
+    def _proof_solver(self) -> str:
+        return self.solver if self.solver in PROOF_SOLVERS else PROOF_SOLVER
+
+    def _solve_with_proof(self, clauses: list, budget: Budget) -> tuple[bool | None, list[int] | None, str]:
+        """The answer on ``clauses`` alone, the model when satisfiable, and the DRUP proof text when not."""
+        with Solver(name=self._proof_solver(), bootstrap_with=clauses, with_proof=True) as solver:
+            answer = _solve(solver, [], budget)
+            if answer is not False:
+                return answer, solver.get_model() if answer else None, ""
+            steps = list(solver.get_proof() or ())
+        if not steps or steps[-1].strip() != "0":
+            steps.append("0")  # a CNF refuted by unit propagation alone: the empty clause follows at once
+        return False, None, "\n".join(steps) + "\n"
 
     # -- verdicts ---------------------------------------------------------------------------------------------
 
@@ -278,6 +336,16 @@ class GateSatEngine:
 
     def _proved(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion,
                 span: tuple[int, int] | None, mode: str, tally: _Tally, started: float, figures: dict) -> Verdict:
+        verdict = self._proved_plain(circuit, prop, question, span, mode, tally, started, figures)
+        if not tally.certify:
+            return verdict
+        scope = verdict.scope + ("; each question was solved as a self-contained CNF with DRUP proof logging "
+                                 f"({self._proof_solver()}) for the certificate")
+        return replace(verdict, scope=scope, certificate=CertificateMaterial("drup", tuple(tally.calls)))
+
+    def _proved_plain(self, circuit: GateCircuit, prop: Property, question: ThresholdQuestion,
+                      span: tuple[int, int] | None, mode: str, tally: _Tally, started: float, figures: dict
+                      ) -> Verdict:
         figures = self._finish(figures, tally, started)
         inputs = self._inputs_text(circuit, prop)
         if question.method == "miter":
@@ -285,8 +353,11 @@ class GateSatEngine:
                      f"of a stable reference sorter by the {prop.key_bits} most significant bits (odd-even "
                      f"transposition swapping only on a strictly greater key), so {prop.describe()} holds")
             return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None, figures)
-        how = (f"{tally.sat_calls} SAT calls, one per threshold, in one incremental solver" if mode == "per-threshold"
-               else "one SAT call with the threshold free")
+        if mode == "per-threshold":
+            how = (f"{tally.sat_calls} SAT calls, one per threshold, " +
+                   ("each a CNF of its own" if tally.certify else "in one incremental solver"))
+        else:
+            how = "one SAT call with the threshold free" if span is None else "one SAT call for the range"
         if span is None:
             scope = (f"{inputs} is covered: threshold SAT proved {prop.describe()} for all 2^{circuit.width} = "
                      f"{question.thresholds:,} thresholds ({how}, {self.solver})")

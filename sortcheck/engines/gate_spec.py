@@ -223,7 +223,8 @@ def threshold_question(circuit: GateCircuit, prop: Property) -> ThresholdQuestio
                              outputs)
 
 
-def _variable_comments(question: ThresholdQuestion, circuit: GateCircuit, outputs) -> list[str]:
+def variable_comments(question: ThresholdQuestion, circuit: GateCircuit, outputs) -> list[str]:
+    """Comment lines naming the input, output and threshold words' literals (least significant bit first)."""
     lines = [f"input word {word.name} = vars {' '.join(map(str, literals))} (least significant bit first)"
              for word, literals in zip(circuit.inputs, question.inputs)]
     lines += [f"output word {word.name} = literals {' '.join(map(str, literals))} (least significant bit first)"
@@ -254,7 +255,7 @@ def gate_violation_cnf(circuit: GateCircuit, prop: Property) -> tuple[list[Claus
            else "some output bit differs from the stable reference sorter")
     comments = [f"sortcheck gate CNF: {circuit.words} words of {circuit.width} bits, {len(circuit.gates)} gates; "
                 f"satisfiable exactly when some input breaks: {prop.describe()} ({how})",
-                *_variable_comments(question, circuit, outputs)]
+                *variable_comments(question, circuit, outputs)]
     return question.clauses(), question.builder.pool, comments
 
 

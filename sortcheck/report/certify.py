@@ -12,15 +12,21 @@ DRUP proof.  It then checks everything again without the engine:
   description); a second run into the same directory also compares the
   digests with the ones recorded before;
 * that the parts' claims add up to the whole network (the sat engine's split);
+* for a gate circuit, that each CNF is the encoding of its claim for the
+  circuit read again from its file, and that the claims cover every
+  threshold (:mod:`sortcheck.report.certify_gates`);
 * order relations by deriving them again; a counterexample by running the
   netlist on it and judging the output with the reference semantics.
 
 The result is ``{"certified": bool, "certificate": {...}}`` for the report.
 ``certified`` is true only when every part was checked and nothing failed; a
 verdict of an engine that gives no certificate material (``smt``,
-``simulate``, unknown verdicts) is never certified.  The CNF encoding of each
-claim is trusted (``encodings/comparator-network-cnf.md``), as is the 0-1
-principle; the ``scope`` of the certificate says so.
+``simulate``, ``lift``, unknown verdicts) is never certified, and the scope
+says why (:data:`UNCERTIFIED`).  The CNF encoding of each claim is trusted
+(``encodings/comparator-network-cnf.md``; for gate circuits
+``encodings/gate-circuit-cnf.md`` and ``encodings/gate-threshold-conditions.md``),
+as is the 0-1 principle or the threshold decomposition; the ``scope`` of the
+certificate says so.
 """
 
 from __future__ import annotations
@@ -36,8 +42,9 @@ from typing import Any
 from sortcheck.engines.base import CertificateMaterial, Status, Verdict
 from sortcheck.engines.certificates import canonical, claim_digest, network_digest
 from sortcheck.load import read_netlist
-from sortcheck.model import ComparatorNetwork, Netlist
+from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
 from sortcheck.model.semantics import violation
+from sortcheck.report.certify_gates import TRUSTED as GATE_TRUSTED, gate_problems
 from sortcheck.report.drup import ProofFormatError, check_proof
 from sortcheck.report.results import FileResult
 from sortcheck.report.reevaluate import composition_problems, recheck_claim, recheck_space, relations_sort
@@ -57,6 +64,15 @@ DRAT_TRIM_SECONDS = 120.0
 CHECK_SECONDS = 900.0
 
 OUR_CHECKER = "sortcheck drup (report/drup.py)"
+GATE_ENCODING = "sortcheck re-encoding of the circuit and threshold coverage (report/certify_gates.py)"
+
+#: Why proved verdicts of these engines are not certified (they record no certificate material).
+UNCERTIFIED = {
+    "lift": "lifted verdicts are not certified in this version: the block proofs and the network proof are not "
+            "recorded",
+    "simulate": "verdicts of simulation are not certified in this version: the inputs evaluated are not recorded",
+    "smt": "smt verdicts are not certified in this version: the SMT solver's proof is not recorded",
+}
 OUR_EVALUATOR = "sortcheck re-evaluation (report/reevaluate.py)"
 
 
@@ -100,6 +116,7 @@ class _Checks:
         self.files: list[str] = []
         self.vectors = 0  # 0-1 vectors evaluated again
         self.lemmas = 0  # DRUP lemmas checked
+        self.coverage = ""  # for a gate circuit: what the questions were found to cover
 
     def by(self, checker: str) -> None:
         if checker not in self.checked_by:
@@ -210,7 +227,7 @@ def _previous_digests(folder: Path, netlist_digest: str | None, verdict: Verdict
             if isinstance(part, dict)}
 
 
-def _scope(method: str, certified: bool, checks: _Checks) -> str:
+def _scope(method: str, certified: bool, checks: _Checks, gates: bool = False) -> str:
     if not certified:
         return ("not certified: " + "; ".join(checks.failures)) if checks.failures else "not certified"
     if method == "counterexample":
@@ -224,12 +241,31 @@ def _scope(method: str, certified: bool, checks: _Checks) -> str:
                      f"({checks.vectors:,} vectors)")
     if method == "order-relations":
         parts.append("the order relations were derived again by independent code")
+    if gates:
+        return ("; ".join(parts) + "; each CNF was found equal to the encoding of its claim for the circuit read "
+                f"again from its file, and {checks.coverage}; trusted: {GATE_TRUSTED}")
     trusted = "the 0-1 principle"
     if "drup" in method:
         trusted = "the CNF encoding of each claim (encodings/comparator-network-cnf.md) and " + trusted
     composed = "; the parts were checked to add up to the whole network" if any(
         "composition" in c for c in checks.checked_by) else ""
     return "; ".join(parts) + composed + f"; trusted: {trusted}"
+
+
+def _check_gates(material: CertificateMaterial, circuit: GateCircuit, verdict: Verdict, folder: Path,
+                 checks: _Checks, manifest: dict) -> None:
+    """The proofs of a gate circuit's questions, their encoding and their coverage of every threshold."""
+    manifest["calls"] = _check_calls(material, folder, checks)
+    problems, coverage = gate_problems(circuit, verdict.prop, material.calls)
+    manifest["coverage"] = coverage
+    checks.coverage = (f"the {coverage['questions']} questions cover all {coverage['thresholds']:,} thresholds "
+                       f"{coverage['low']}..{coverage['high']}" if coverage["domain"] == "thresholds"
+                       else "the miter question covers every input")
+    checks.failures += problems
+    if not problems:
+        checks.by(GATE_ENCODING)
+    if material.enumerated or material.relations is not None:
+        checks.failures.append("the gate engine's certificate has parts this checker does not know")
 
 
 def certify_result(netlist: Netlist | None, path: str, verdict: Verdict | None, root: Path) -> dict[str, Any]:
@@ -252,7 +288,15 @@ def certify_result(netlist: Netlist | None, path: str, verdict: Verdict | None, 
     elif verdict.status != Status.PROVED:
         method = "none"
         checks.failures.append("the verdict is unknown: nothing was proved")
-    elif material is None or not material.complete or not isinstance(netlist, ComparatorNetwork):
+    elif material is None or not material.complete:
+        method = "none"
+        checks.failures.append(UNCERTIFIED.get(verdict.engine,
+                                               f"the {verdict.engine} engine gives no certificate material for "
+                                               f"this proof"))
+    elif isinstance(netlist, GateCircuit):
+        method = material.method
+        _check_gates(material, netlist, verdict, folder, checks, manifest)
+    elif not isinstance(netlist, ComparatorNetwork):
         method = "none"
         checks.failures.append(f"the {verdict.engine} engine gives no certificate material for this proof")
     else:
@@ -271,7 +315,8 @@ def certify_result(netlist: Netlist | None, path: str, verdict: Verdict | None, 
         _check_structure(material, netlist, checks)
     certified = not checks.failures and bool(checks.checked_by)
     certificate = {"method": method, "directory": str(folder), "files": [MANIFEST, *checks.files],
-                   "checked_by": checks.checked_by, "scope": _scope(method, certified, checks)}
+                   "checked_by": checks.checked_by,
+                   "scope": _scope(method, certified, checks, isinstance(netlist, GateCircuit))}
     if checks.failures:
         certificate["failures"] = checks.failures
     manifest.update({"method": method, "certified": certified, "checked_by": checks.checked_by,
