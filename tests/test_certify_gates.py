@@ -59,8 +59,8 @@ def certified_verdict(circuit, prop=Sorts(), **settings):
 
 
 def test_counting_sorters_proved_by_sat_are_certified_with_every_file_written(tmp_path):
-    paths = [written(tmp_path, counting_sorter(4, 2), "c4x2.json"), written(tmp_path, counting_sorter(5, 2), "c5x2.json"),
-             written(tmp_path, counting_sorter(3, 4), "c3x4.json")]
+    paths = [written(tmp_path, counting_sorter(words, width), f"c{words}x{width}.json")
+             for words, width in ((4, 2), (5, 2), (3, 4))]
     for path in paths:  # the reference evaluator agrees that they sort (every input)
         assert holds_everywhere(read_netlist(path), Sorts())
     status, results = json_results(tmp_path, *paths, "--engine", "sat", "--certify", str(tmp_path / "certs"))
