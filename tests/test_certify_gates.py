@@ -262,7 +262,8 @@ def test_certify_off_records_nothing_and_does_not_split():
     circuit = counting_sorter(4, 2)
     assert GateSatEngine().check(circuit, Sorts(), Budget()).certificate is None
     assert GateSatEngine().pieces(circuit, Sorts(), Options(certify=True)) is None
-    assert len(GateSatEngine().pieces(circuit, Sorts())) == 4
+    assert len(GateSatEngine(min_split_gates=0).pieces(circuit, Sorts())) == 4
+    assert GateSatEngine().pieces(circuit, Sorts()) is None  # too small to be worth worker processes
 
 
 @pytest.mark.parametrize("answer, certified", [("s VERIFIED", True), ("s NOT VERIFIED", False)])

@@ -30,7 +30,7 @@ from sortcheck.model.families import merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
 from gate_reference import breaks_words, holds_everywhere, run_gates, signed_values
 
-SAT_ONLY = GateSatEngine(samples=0)
+SAT_ONLY = GateSatEngine(samples=0, min_split_gates=0)  # small circuits split too, to test the pieces
 STYLES = ("and-or", "mux", "xor")
 
 

@@ -64,6 +64,10 @@ PER_THRESHOLD_WIDTH = 3
 #: Pieces a check splits into (about twice the cores of a small machine), at most one per threshold.
 PIECES = 4
 
+#: Circuits with fewer gates are checked whole: their threshold SAT takes well under a second (counting
+#: sorter 8 x 3, 423 gates: 0.3 s), less than starting worker processes and encoding once per piece.
+MIN_SPLIT_GATES = 500
+
 #: Figures every piece of one check has alike.
 SHARED_FIGURES = ("thresholds", "clauses", "variables", "circuit_nodes", "nodes_hashed_away", "all_nodes_hashed_away")
 
@@ -137,8 +141,9 @@ class GateSatEngine:
     isolate = True
 
     def __init__(self, solver: str = INTERRUPTIBLE_SOLVER, per_threshold_width: int = PER_THRESHOLD_WIDTH,
-                 samples: int = SIMULATION_SAMPLES, seed: int = SEED):
+                 samples: int = SIMULATION_SAMPLES, seed: int = SEED, min_split_gates: int = MIN_SPLIT_GATES):
         self.solver, self.per_threshold_width, self.samples, self.seed = solver, per_threshold_width, samples, seed
+        self.min_split_gates = min_split_gates
 
     def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
                 ) -> tuple[StopReason, str] | None:
@@ -180,16 +185,21 @@ class GateSatEngine:
         """Threshold ranges in increasing order, ``{"kind": "thresholds", "low": a, "high": b}`` (inclusive).
 
         None when the check does not split (a refused check, a stable
-        partial sort, which is one miter, or a check that gathers certificate
-        material, whose questions are recorded by one engine run).
+        partial sort, which is one miter, a check that gathers certificate
+        material, whose questions are recorded by one engine run, or a
+        circuit of fewer than :data:`MIN_SPLIT_GATES` gates, whose check takes
+        less than starting worker processes).
 
         >>> from sortcheck.model import Sorts
         >>> from sortcheck.model.counting import counting_sorter
-        >>> GateSatEngine().pieces(counting_sorter(3, 3, signed=True), Sorts(signed=True))[:2]
+        >>> circuit = counting_sorter(3, 3, signed=True)
+        >>> GateSatEngine().pieces(circuit, Sorts(signed=True)) is None  # too small to be worth it
+        True
+        >>> GateSatEngine(min_split_gates=0).pieces(circuit, Sorts(signed=True))[:2]
         [{'kind': 'thresholds', 'low': -4, 'high': -3}, {'kind': 'thresholds', 'low': -2, 'high': -1}]
         """
         if (self.refusal(netlist, prop, options) is not None or (isinstance(prop, PartialSort) and prop.stable)
-                or options.certify):
+                or options.certify or len(netlist.gates) < self.min_split_gates):  # type: ignore[union-attr]
             return None
         width = netlist.width  # type: ignore[union-attr]
         low = -(1 << (width - 1)) if prop.signed else 0
