@@ -34,7 +34,7 @@ then by the distance (in gates) to the nearest wrong output bit.
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from typing import Any, Sequence
 
 import networkx as nx
@@ -47,6 +47,7 @@ from sortcheck.explain.gate_flips import wrong_bits
 from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw, to_values
 from sortcheck.explain.gate_repair_cnf import MAX_TABLE_INPUTS, RepairCnf
 from sortcheck.explain.gate_suspects import Suspect, rank_suspects
+from sortcheck.explain.repair import RepairOutcome
 from sortcheck.load.locate import line_of
 from sortcheck.model import DEFAULT_PROPERTY, GateCircuit, Merges, Property, check_fits
 
@@ -97,35 +98,14 @@ class GateRepairOptions:
 
 
 @dataclass(frozen=True)
-class GateRepairOutcome:
-    """What :func:`repair_circuit` found; the fields of the network repair's outcome, plus suspects."""
+class GateRepairOutcome(RepairOutcome):
+    """What :func:`repair_circuit` found: the network repair's outcome (``network`` is the repaired
+    circuit, ``changes`` are :class:`GateChange`), plus the ranked suspect gates."""
 
-    status: str
-    changes: tuple[GateChange, ...]
-    network: GateCircuit | None
-    verified: bool
-    candidates_tried: int
-    verifications: int
-    seconds: float
-    reason: str
-    searched: str
-    bank_inputs: int = 0
-    counterexamples_added: int = 0
-    undecided: int = 0
     suspects: tuple[Suspect, ...] = ()
-    verdict: Verdict | None = field(default=None, compare=False)
 
     def to_json(self) -> dict[str, Any]:
-        proof = self.verdict if self.verified else None
-        return {"status": self.status, "changes": [change.to_json() for change in self.changes],
-                "verified": self.verified, "reason": self.reason, "searched": self.searched,
-                "engine": None if proof is None else proof.engine,
-                "scope": None if proof is None else proof.scope,
-                "stats": None if self.network is None else self.network.stats(),
-                "candidates_tried": self.candidates_tried, "verifications": self.verifications,
-                "bank_inputs": self.bank_inputs, "counterexamples_added": self.counterexamples_added,
-                "undecided": self.undecided, "seconds": round(self.seconds, 3),
-                "suspects": [suspect.to_json() for suspect in self.suspects]}
+        return {**super().to_json(), "suspects": [suspect.to_json() for suspect in self.suspects]}
 
 
 def change_ops(circuit: GateCircuit, ops: dict[str, str]) -> GateCircuit:
@@ -254,7 +234,7 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
         verified = verdict is not None and verdict.status == Status.PROVED
         return GateRepairOutcome(status, tuple(changes), fixed, verified, counts["tried"], counts["verifications"],
                                  time.perf_counter() - started, reason, searched, bank_size, counts["added"],
-                                 counts["undecided"], tuple(suspects), verdict)
+                                 counts["undecided"], verdict=verdict, suspects=tuple(suspects))
 
     first = check(circuit, prop, engine=options.engine, timeout=budget.remaining())
     counts["verifications"] += 1
