@@ -129,6 +129,7 @@ def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = F
         When the two do not have the same input and output words.
     """
     started = time.perf_counter()
+    lowered = isinstance(first, ComparatorNetwork) != isinstance(second, ComparatorNetwork)
     first, second = comparable(first, second, signed, sources)
     if isinstance(first, ComparatorNetwork):
         return _networks(first, second, budget, started)  # type: ignore[arg-type]
@@ -139,7 +140,7 @@ def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = F
     if lifted is not None:
         answer = _networks(*lifted, budget, started)
         if answer.status is not Status.REFUTED or _differs_as_words(first, second, answer.input, signed):
-            return _as_lifted(first, second, answer, lifted, signed, started)
+            return _as_lifted(first, second, answer, lifted, signed, started, lowered)
     return _miter(first, second, budget, started)  # type: ignore[arg-type]
 
 
@@ -170,17 +171,20 @@ def _differs_as_words(first: GateCircuit, second: GateCircuit, zero_one, signed:
 
 
 def _as_lifted(first: GateCircuit, second: GateCircuit, answer: Equivalence,
-               networks: tuple[ComparatorNetwork, ComparatorNetwork], signed: bool, started: float) -> Equivalence:
-    method = f"lifted networks, {answer.method}"
+               networks: tuple[ComparatorNetwork, ComparatorNetwork], signed: bool, started: float,
+               lowered: bool = False) -> Equivalence:
+    """The answer about two lifted circuits (``lowered``: one of them is a given network, lowered to gates)."""
+    method = f"{'lifted circuit' if lowered else 'lifted networks'}, {answer.method}"
     figures = {**answer.figures, "lifted_comparators": [networks[0].size, networks[1].size]}
     order = "two's complement" if signed else "unsigned"
     if answer.status is Status.REFUTED:
         return _differ(first, second, _words_for(answer.input, first.width, signed), method, started, figures)
     if answer.status is Status.UNKNOWN:
         return dataclasses.replace(answer, method=method, figures=figures, seconds=time.perf_counter() - started)
-    scope = (f"both circuits were proved, block by block, to be comparator networks on {first.words} words of "
-             f"{first.width} bits ({order} min/max blocks), and the two networks compute the same function: "
-             f"{answer.scope}")
+    proved = ("the gate circuit was proved, block by block, to be a comparator network" if lowered else
+              "both circuits were proved, block by block, to be comparator networks")
+    scope = (f"{proved} on {first.words} words of {first.width} bits ({order} min/max blocks), and the two "
+             f"networks compute the same function: {answer.scope}")
     return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
 
 
