@@ -80,3 +80,10 @@ def test_check_traces_a_refuted_circuit_that_lifts_on_its_lifted_network(tmp_pat
     assert result["diagnosis"] is not None
     status, out, _ = cli("check", path)
     assert "where, in the lifted comparator network:" in out and "order keys after each layer" in out
+
+
+def test_input_words_must_fit_the_width(tmp_path):
+    path = tmp_path / "gates.json"
+    write_netlist(lower_network(merge_exchange(4), 3, style="mux"), path)
+    status, _, err = cli("draw", path, "--output", tmp_path / "g.svg", "--input", "1,2,3,9")
+    assert status == 2 and "9 is not a word of 3 bits (0 to 7)" in err

@@ -88,6 +88,12 @@ def lifted_view(circuit: GateCircuit, prop: Property, words: Sequence[int] | Non
         return LiftedView(lifting.network, network_prop, lifting)
     if len(words) != circuit.words:
         raise UsageError(f"expected {circuit.words} input words, got {len(words)}", source)
+    low, high = (-(1 << (circuit.width - 1)), (1 << (circuit.width - 1)) - 1) if prop.signed else \
+        (0, (1 << circuit.width) - 1)
+    for value in words:
+        if not low <= value <= high:
+            kind = "two's complement " if prop.signed else ""
+            raise UsageError(f"{value} is not a {kind}word of {circuit.width} bits ({low} to {high})", source)
     values = order_keys(lifting, words, circuit.width)
     zero_one = failing_threshold_input(lifting.network, network_prop, values)
     diagnosis = None if zero_one is None else diagnose_network(lifting.network, network_prop, zero_one)
