@@ -357,7 +357,9 @@ def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     diagnosis = None
     if args.input:
         try:
-            values = parse_input_values(args.input, positions)
+            noun = "the network has {} channels" if isinstance(netlist, ComparatorNetwork) else \
+                "the circuit has {} input words"
+            values = parse_input_values(args.input, positions, noun)
         except ValueError as error:
             raise UsageError(str(error), "--input") from None
         if isinstance(netlist, ComparatorNetwork) and set(values) <= {0, 1}:

@@ -68,7 +68,8 @@ LEGEND_SIZE = 11.5
 _NOT_XML = re.compile("[^\u0009\u000a\u000d\u0020-\ud7ff\ue000-\ufffd\U00010000-\U0010ffff]")
 
 
-def parse_input_values(text: str, channels: int) -> tuple[int, ...]:
+def parse_input_values(text: str, channels: int, positions: str = "the network has {} channels"
+                       ) -> tuple[int, ...]:
     """An input from the command line: comma-separated integers, or a string of 0s and 1s.
 
     Spaces and underscores in a 0-1 string are ignored (``1010 0110``).
@@ -89,7 +90,7 @@ def parse_input_values(text: str, channels: int) -> tuple[int, ...]:
     else:
         raise UsageError(f"--input: expected comma-separated integers or a 0-1 string, got {text!r}")
     if len(values) != channels:
-        raise UsageError(f"--input: the network has {channels} channels, got {len(values)} values")
+        raise UsageError(f"--input: {positions.format(channels)}, got {len(values)} values")
     return values
 
 
