@@ -72,7 +72,8 @@ def parse_input_values(text: str, channels: int, positions: str = "the network h
                        ) -> tuple[int, ...]:
     """An input from the command line: comma-separated integers, or a string of 0s and 1s.
 
-    Spaces and underscores in a 0-1 string are ignored (``1010 0110``).
+    Spaces and underscores in a 0-1 string are ignored (``1010 0110``).  ``positions`` words the error
+    for a wrong count (``{}`` stands for ``channels``).
 
     >>> parse_input_values("3,1,2", 3)
     (3, 1, 2)
