@@ -342,13 +342,6 @@ def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     return EXIT_PROVED
 
 
-def _network_of(path: str, command: str) -> ComparatorNetwork:
-    netlist = read_netlist(path)
-    if not isinstance(netlist, ComparatorNetwork):
-        raise UsageError(f"{command} takes comparator networks; gate circuits are not supported yet", path)
-    return netlist
-
-
 def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     netlist = read_netlist(args.path)
     prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
