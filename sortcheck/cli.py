@@ -146,7 +146,8 @@ def build_parser() -> argparse.ArgumentParser:
     build.add_argument("--signed", action="store_true", help="compare two's complement words")
     build.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
 
-    draw = commands.add_parser("draw", help="draw a comparator network as SVG, with a counterexample on it")
+    draw = commands.add_parser("draw", help="draw a comparator network (or a gate circuit that lifts to one) as "
+                               "SVG, with a counterexample on it")
     draw.add_argument("path", metavar="PATH")
     draw.add_argument("--output", metavar="FILE.svg", required=True)
     draw.add_argument("--input", metavar="VALUES", help="values to follow through the network: comma-separated "
