@@ -138,6 +138,66 @@ def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: B
     return None
 
 
+def part_clauses(network: ComparatorNetwork, groups: list, comparators: list[int], target, pool: IDPool,
+                 contradiction: bool = False) -> tuple[list | None, list[int]]:
+    """The CNF of a vector sorted on ``groups`` that breaks ``target`` after ``comparators``, and the input
+    variables by channel (0 on channels the target does not read).
+
+    ``target`` is a property of the whole network or ``("sorted", channels, order)``.  The clauses are None
+    when no 0-1 input can break the property (with ``contradiction``: a contradiction instead).
+
+    >>> clauses, inputs = part_clauses(ComparatorNetwork(2, ()), [((0,), "ascending"), ((1,), "ascending")], [],
+    ...                                Sorts(), IDPool())
+    >>> solve_within(clauses, Budget()) is not None, inputs
+    (True, [1, 2])
+    """
+    channels = target[1] if isinstance(target, tuple) else tuple(range(network.channels))
+    inputs = [0] * network.channels
+    for channel in channels:
+        inputs[channel] = pool.id(("input", channel))
+    encoding = encode_network(network, pool, comparators, inputs)
+    clauses = list(encoding.clauses)
+    for members, order in groups:
+        clauses += chain_clauses([inputs[c] for c in members], order == "descending")
+    if isinstance(target, tuple):
+        outputs = [encoding.outputs[c] for c in channels]
+        pair_clauses, pairs = descent_clauses(outputs, pool, target[2] == "descending")
+        return clauses + pair_clauses + [pairs], inputs
+    condition = violation_clauses(target, inputs, encoding.outputs, pool)
+    if condition is None and not contradiction:
+        return None, inputs
+    if condition is None:
+        never = pool.id(("never",))
+        condition = [[never], [-never]]
+    return clauses + condition, inputs
+
+
+def proved_frontier(network: ComparatorNetwork, budget: Budget) -> tuple[list[tuple[tuple[int, ...], str]],
+                                                                         list[int]]:
+    """The proved parts just below the root of ``network``'s split, and the comparators after them.
+
+    Each part ``(channels, order)`` was proved, with everything below it, to sort its channels (so
+    in that order) from any input; the comparators (indices, in a valid order) are the rest of the
+    network.  Hence the network maps an input ``x`` to the comparators applied to ``x`` with each
+    part's channels sorted.  Raises :class:`sortcheck.engines.solving.Interrupted` at the deadline.
+
+    >>> from sortcheck.model.families import bitonic
+    >>> groups, comparators = proved_frontier(bitonic(8), Budget())
+    >>> groups, len(comparators)
+    ([((0, 1, 2, 3), 'ascending'), ((4, 5, 6, 7), 'ascending')], 12)
+    """
+    engine, tally = SatEngine(simulation_rounds=0), _Tally()
+    parts = split_tree(network, join_delayed_order(network))
+    root = len(parts) - 1
+    try:
+        for index in range(network.channels, root):
+            engine._settle(network, parts, index, budget, tally)
+    except _Interrupted:
+        raise Interrupted from None
+    below, comparators = frontier(parts, root)
+    return [(parts[i].channels, parts[i].order) for i in below], comparators
+
+
 class SatEngine(BlockSteps):
     """Random simulation, then the network split along its structure, then SAT (glucose 4).
 
@@ -334,27 +394,11 @@ class SatEngine(BlockSteps):
 
     def _solve(self, network, groups: list, comparators: list[int], target, budget: Budget, tally: _Tally
                ) -> tuple[int, ...] | None:
-        channels = self._channels(network, target)
         pool = IDPool()
-        inputs = [0] * network.channels
-        for channel in channels:
-            inputs[channel] = pool.id(("input", channel))
-        encoding = encode_network(network, pool, comparators, inputs)
-        clauses = list(encoding.clauses)
-        for members, order in groups:
-            clauses += chain_clauses([inputs[c] for c in members], order == "descending")
-        if isinstance(target, tuple):
-            outputs = [encoding.outputs[c] for c in channels]
-            pair_clauses, pairs = descent_clauses(outputs, pool, target[2] == "descending")
-            clauses += pair_clauses + [pairs]
-        else:
-            condition = violation_clauses(target, inputs, encoding.outputs, pool)
-            if condition is None and not tally.certify:
-                return None
-            if condition is None:  # no 0-1 input can break it: a contradiction keeps the certificate uniform
-                never = pool.id(("never",))
-                condition = [[never], [-never]]
-            clauses += condition
+        # When no 0-1 input can break the target, a contradiction keeps the certificate uniform.
+        clauses, inputs = part_clauses(network, groups, comparators, target, pool, contradiction=tally.certify)
+        if clauses is None:
+            return None
         tally.variables += pool.top
         tally.clauses += len(clauses)
         if budget.expired():

@@ -9,7 +9,10 @@ smaller.  Minimisation runs in two phases:
 2. prove it: evaluate every 0-1 input with ``w`` ones and every one with
    ``w`` zeros, for ``w = 0, 1, ...`` in that order, as long as there are at
    most ``max_vectors`` of them (the first failing one is the minimum);
-   beyond that, ask a SAT solver for failing inputs of ever smaller measure
+   beyond that, search the counts of ones of the parts the ``sat`` engine
+   proves to sort (:mod:`sortcheck.explain.minimal_structure`: enumerated
+   when few, else by SAT on the CNF after those parts), and last ask a SAT
+   solver, on the whole network, for failing inputs of ever smaller measure
    (cardinality constraints), until it answers that none is smaller.
 
 Merges speak only of the ``(m+1)(n-m+1)`` inputs with two ascending runs,
@@ -27,12 +30,11 @@ from typing import Iterator, Sequence
 import numpy as np
 
 from sortcheck.engines.base import Budget, Counterexample
-from pysat.card import CardEnc, EncType
 
 from sortcheck.engines.bitslice import LANES, MergeInputs, apply_network, failure_mask
 from sortcheck.engines.network_cnf import encode_network, violation_clauses
-from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.explain.diagnose import permutation_of
+from sortcheck.explain.minimal_structure import lower_by_sat, search_by_structure
 from sortcheck.explain.shrink import ZERO_ONE_PASSES, shrink, zero_one_measure
 from sortcheck.model import ComparatorNetwork, Merges, Property
 from sortcheck.model.semantics import violation
@@ -136,36 +138,10 @@ def _search_by_weight(network: ComparatorNetwork, prop: Property, below: int, bu
 
 def _search_by_sat(network: ComparatorNetwork, prop: Property, floor: int, best: tuple[int, ...], budget: Budget
                    ) -> tuple[tuple[int, ...], int]:
-    """Lower the measure of ``best`` with a SAT solver, down to ``floor`` (below which none exists).
-
-    Each query asks for a failing input with at most ``k`` ones or at most
-    ``k`` zeros (cardinality constraints behind two selectors), for ``k`` one
-    below the best measure so far: satisfiable queries are usually quick and
-    only the last, unsatisfiable one proves minimality.  Returns the best
-    input and the measure below which no failing input exists (``floor`` if
-    the budget ran out first).
-    """
+    """Lower the measure of ``best`` with a SAT solver on the whole network's CNF, down to ``floor``."""
     encoding = encode_network(network)
-    pool, inputs = encoding.pool, list(encoding.inputs)
-    condition = violation_clauses(prop, inputs, list(encoding.outputs), pool)
-    while zero_one_measure(best) > floor:
-        bound = zero_one_measure(best) - 1
-        clauses = encoding.clauses + condition
-        selectors = []
-        for side, literals in (("ones", inputs), ("zeros", [-x for x in inputs])):
-            selector = pool.id(("measure", side, bound))
-            selectors.append(selector)
-            cardinality = CardEnc.atmost(literals, bound=bound, vpool=pool, encoding=EncType.seqcounter)
-            clauses = clauses + [[-selector] + clause for clause in cardinality.clauses]
-        try:
-            model = solve_within(clauses + [selectors], budget)
-        except Interrupted:
-            return best, floor
-        if model is None:
-            return best, bound + 1
-        true = {literal for literal in model if literal > 0}
-        best = tuple(int(x in true) for x in inputs)
-    return best, floor
+    condition = violation_clauses(prop, list(encoding.inputs), list(encoding.outputs), encoding.pool)
+    return lower_by_sat(encoding.clauses + condition, list(encoding.inputs), encoding.pool, floor, best, budget)
 
 
 def _merge_minimum(network: ComparatorNetwork, prop: Merges) -> tuple[int, ...]:
@@ -184,8 +160,12 @@ def _merge_minimum(network: ComparatorNetwork, prop: Merges) -> tuple[int, ...]:
 
 
 def minimize_network_counterexample(network: ComparatorNetwork, prop: Property, example: Counterexample,
-                                    budget: Budget, max_vectors: int = MAX_VECTORS) -> Counterexample:
+                                    budget: Budget, max_vectors: int = MAX_VECTORS, structure: bool = True
+                                    ) -> Counterexample:
     """A failing 0-1 input of least measure, proved minimal when the search completes.
+
+    ``structure`` false skips the search over the counts of the proved parts
+    (the whole-network SAT search then does all the proving).
 
     Examples
     --------
@@ -204,7 +184,11 @@ def minimize_network_counterexample(network: ComparatorNetwork, prop: Property, 
         if smaller is not None:
             best = smaller
         elif covered < zero_one_measure(best):
-            best, covered = _search_by_sat(network, prop, covered, best, budget)
+            structured = search_by_structure(network, prop, covered, best, budget) if structure else None
+            if structured is not None:
+                best, covered = structured
+            if covered < zero_one_measure(best):
+                best, covered = _search_by_sat(network, prop, covered, best, budget)
         complete = covered >= zero_one_measure(best)
     output = tuple(network.apply(list(best)))
     reason = violation(prop, best, output)
