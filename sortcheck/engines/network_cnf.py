@@ -198,6 +198,41 @@ def _median_clauses(inputs: Sequence[int], outputs: Sequence[int], pool: IDPool)
     return clauses
 
 
+def part_clauses(network: ComparatorNetwork, groups: list, comparators: list[int], target, pool: IDPool,
+                 contradiction: bool = False) -> tuple[list | None, list[int]]:
+    """The CNF of a vector sorted on ``groups`` that breaks ``target`` after ``comparators``, and the input
+    variables by channel (0 on channels the target does not read).
+
+    ``target`` is a property of the whole network or ``("sorted", channels, order)``.  The clauses are None
+    when no 0-1 input can break the property (with ``contradiction``: a contradiction instead).
+
+    >>> from pysat.solvers import Solver
+    >>> clauses, inputs = part_clauses(ComparatorNetwork(2, ()), [((0,), "ascending"), ((1,), "ascending")], [],
+    ...                                Sorts(), IDPool())
+    >>> Solver(name="minisat22", bootstrap_with=clauses).solve(), inputs
+    (True, [1, 2])
+    """
+    channels = target[1] if isinstance(target, tuple) else tuple(range(network.channels))
+    inputs = [0] * network.channels
+    for channel in channels:
+        inputs[channel] = pool.id(("input", channel))
+    encoding = encode_network(network, pool, comparators, inputs)
+    clauses = list(encoding.clauses)
+    for members, order in groups:
+        clauses += chain_clauses([inputs[c] for c in members], order == "descending")
+    if isinstance(target, tuple):
+        outputs = [encoding.outputs[c] for c in channels]
+        pair_clauses, pairs = descent_clauses(outputs, pool, target[2] == "descending")
+        return clauses + pair_clauses + [pairs], inputs
+    condition = violation_clauses(target, inputs, encoding.outputs, pool)
+    if condition is None and not contradiction:
+        return None, inputs
+    if condition is None:
+        never = pool.id(("never",))
+        condition = [[never], [-never]]
+    return clauses + condition, inputs
+
+
 def plain_cnf(network: ComparatorNetwork, prop: Property = Sorts()) -> NetworkEncoding:
     """The plain encoding: six clauses for every comparator, then the violation condition.
 

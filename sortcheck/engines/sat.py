@@ -49,7 +49,7 @@ from sortcheck.engines.base import (Budget, CertificateMaterial, Counterexample,
                                     StopReason, UnsatCall, Verdict, refused_verdict)
 from sortcheck.engines.certificates import canonical, claim_digest, claim_label, network_digest, part_claim
 from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
-from sortcheck.engines.network_cnf import chain_clauses, descent_clauses, dimacs, encode_network, violation_clauses
+from sortcheck.engines.network_cnf import dimacs, part_clauses
 from sortcheck.engines.order import relations_prove_sorted
 from sortcheck.engines.network_split import SortedParts, frontier, join_delayed_order, split_tree
 from sortcheck.engines.sat_blocks import BlockSteps, BlockTally
@@ -136,40 +136,6 @@ def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: B
         if lane is not None:
             return tuple(int(b) for b in bits[:, lane])
     return None
-
-
-def part_clauses(network: ComparatorNetwork, groups: list, comparators: list[int], target, pool: IDPool,
-                 contradiction: bool = False) -> tuple[list | None, list[int]]:
-    """The CNF of a vector sorted on ``groups`` that breaks ``target`` after ``comparators``, and the input
-    variables by channel (0 on channels the target does not read).
-
-    ``target`` is a property of the whole network or ``("sorted", channels, order)``.  The clauses are None
-    when no 0-1 input can break the property (with ``contradiction``: a contradiction instead).
-
-    >>> clauses, inputs = part_clauses(ComparatorNetwork(2, ()), [((0,), "ascending"), ((1,), "ascending")], [],
-    ...                                Sorts(), IDPool())
-    >>> solve_within(clauses, Budget()) is not None, inputs
-    (True, [1, 2])
-    """
-    channels = target[1] if isinstance(target, tuple) else tuple(range(network.channels))
-    inputs = [0] * network.channels
-    for channel in channels:
-        inputs[channel] = pool.id(("input", channel))
-    encoding = encode_network(network, pool, comparators, inputs)
-    clauses = list(encoding.clauses)
-    for members, order in groups:
-        clauses += chain_clauses([inputs[c] for c in members], order == "descending")
-    if isinstance(target, tuple):
-        outputs = [encoding.outputs[c] for c in channels]
-        pair_clauses, pairs = descent_clauses(outputs, pool, target[2] == "descending")
-        return clauses + pair_clauses + [pairs], inputs
-    condition = violation_clauses(target, inputs, encoding.outputs, pool)
-    if condition is None and not contradiction:
-        return None, inputs
-    if condition is None:
-        never = pool.id(("never",))
-        condition = [[never], [-never]]
-    return clauses + condition, inputs
 
 
 def proved_frontier(network: ComparatorNetwork, budget: Budget) -> tuple[list[tuple[tuple[int, ...], str]],

@@ -38,7 +38,8 @@ from pysat.formula import IDPool
 from sortcheck.engines.base import Budget
 from sortcheck.engines.bitslice import apply_network, failure_mask
 from sortcheck.engines.network_split import SortedParts
-from sortcheck.engines.sat import part_clauses, proved_frontier
+from sortcheck.engines.network_cnf import part_clauses
+from sortcheck.engines.sat import proved_frontier
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.explain.shrink import zero_one_measure
 from sortcheck.model import ComparatorNetwork, Median, Property, Selects, Sorts
