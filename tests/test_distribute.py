@@ -206,7 +206,7 @@ def test_the_first_counterexample_cancels_the_other_local_pieces(split_everythin
 def test_a_killed_local_worker_is_replaced_and_the_check_completes(split_everything):
     psutil = pytest.importorskip("psutil")
     split_everything(16)
-    network = build_family("merge-exchange", 27)
+    network = build_family("merge-exchange", 29)
     pieces = UNREDUCED.pieces(network, Sorts())
     outcome = {}
     with LocalProcesses(2) as runner:
@@ -223,7 +223,7 @@ def test_a_killed_local_worker_is_replaced_and_the_check_completes(split_everyth
         os.kill(children[0].pid, signal.SIGKILL)
         thread.join(60)
     same_as_single(UNREDUCED, network, Options(), outcome["verdict"])
-    assert outcome["verdict"].figures["vectors_evaluated"] == 1 << 27
+    assert outcome["verdict"].figures["vectors_evaluated"] == 1 << 29
 
 
 @pytest.mark.parametrize("count", [False, True])
@@ -342,3 +342,69 @@ def test_a_piece_of_another_layout_is_refused_not_misread(split_everything):
     verdict = UNREDUCED.check_piece(network, Sorts(), piece, Budget(), Options())
     assert verdict.status == Status.UNKNOWN and verdict.stop.value == "unsupported"
     assert "nothing was checked" in verdict.scope
+
+
+# --- auto for gate circuits: its own steps here, then threshold SAT as pieces ------------------------------------
+
+#: Values of words x0..x3 on which :func:`trapped` breaks (2^-20 of the inputs: random simulation misses them).
+TRAP = (21, 10, 27, 6)
+
+
+def trapped(words: int = 6, width: int = 5):
+    """The counting sorter with output bit 0 of its largest word flipped exactly when x0..x3 hold :data:`TRAP`."""
+    from sortcheck.model import Gate, GateCircuit, OutputWord
+    from sortcheck.model.counting import counting_sorter
+
+    circuit = counting_sorter(words, width)
+    gates, terms = list(circuit.gates), []
+    for word, value in enumerate(TRAP):
+        for bit in range(width):
+            name = f"x{word}[{bit}]"
+            if not value >> bit & 1:
+                gates.append(Gate(f"trap_not_{word}_{bit}", "not", (name,)))
+                name = f"trap_not_{word}_{bit}"
+            terms.append(name)
+    gates.append(Gate("trap", "and", tuple(terms)))
+    last = circuit.outputs[-1]
+    gates.append(Gate("trap_bit0", "xor", (last.bits[0], "trap")))
+    outputs = circuit.outputs[:-1] + (OutputWord(last.name, ("trap_bit0",) + last.bits[1:]),)
+    return GateCircuit(circuit.inputs, tuple(gates), outputs)
+
+
+def test_the_trap_breaks_exactly_where_it_says():
+    from gate_reference import breaks_words, run_gates
+
+    circuit = trapped()
+    caught = list(TRAP) + [3, 30]
+    assert breaks_words(Sorts(), caught, run_gates(circuit, caught), 5)  # the independent evaluator
+    missed = list(TRAP[:3]) + [7, 3, 30]
+    assert not breaks_words(Sorts(), missed, run_gates(circuit, missed), 5)
+
+
+@pytest.mark.parametrize("circuit, status", [(None, Status.PROVED), ("trapped", Status.REFUTED)])
+def test_auto_for_gate_circuits_splits_its_threshold_sat_step(dask_runner, circuit, status):
+    from sortcheck.model.counting import counting_sorter
+
+    circuit = trapped() if circuit else counting_sorter(6, 5)
+    single = check_split(circuit, Sorts(), runner=InProcess(splits=False))  # what --jobs 1 runs
+    assert single.status is status and single.figures["method"] == "threshold-sat"
+    with LocalProcesses(2) as local:
+        runs = [check_split(circuit, Sorts(), runner=local), check_split(circuit, Sorts(), runner=dask_runner)]
+    for verdict, where in zip(runs, ["2 local processes", dask_runner.ran_on]):
+        assert verdict.status is status and verdict.engine == single.engine == "sat"
+        assert verdict.figures["pieces"] == 4 and verdict.figures["ran_on"] == where
+        assert verdict.figures["method"] == "threshold-sat"
+        assert verdict.figures["steps"][0].startswith("simulation of corner cases")  # the steps before the pieces
+        assert verdict.counterexample == single.counterexample
+    if status is Status.REFUTED:
+        assert single.counterexample.input[:4] == TRAP
+
+
+def test_auto_for_gate_circuits_decided_before_threshold_sat_runs_here():
+    from sortcheck.model.families import merge_exchange
+    from sortcheck.model.lowering import lower_network
+
+    with LocalProcesses(2) as local:
+        verdict = check_split(lower_network(merge_exchange(8), 8, style="mux"), Sorts(), runner=local)
+    assert verdict.status is Status.PROVED and verdict.figures["method"] == "lift"
+    assert verdict.figures["ran_on"] == "this process" and verdict.figures["pieces"] == 1

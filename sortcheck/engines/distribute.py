@@ -346,8 +346,11 @@ def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "a
             return check(netlist, prop, engine, timeout, source, options, progress)  # the refusal verdict
     else:
         chosen, reason = get_engine(engine), f"requested with --engine {engine}"
+    splits = getattr(runner, "splits", runner is not None)
+    if splits and hasattr(chosen, "staged"):
+        return _staged(chosen, netlist, prop, budget, options, runner, reason, started)
     pieces = None
-    if getattr(runner, "splits", runner is not None) and hasattr(chosen, "pieces"):
+    if splits and hasattr(chosen, "pieces"):
         pieces = chosen.pieces(netlist, prop, options)
     if not pieces or len(pieces) < 2:
         isolated = not chosen.cooperative or getattr(chosen, "isolate", False)
@@ -376,6 +379,19 @@ def run_pieces(engine, netlist: Netlist, prop: Property, pieces: Sequence[dict],
     return combined
 
 
+def _staged(engine, netlist: Netlist, prop: Property, budget: Budget, options: Options, runner, reason: str,
+            started: float) -> Verdict:
+    """A check of an engine with steps before its pieces (see :class:`~sortcheck.engines.pieces.Staged`)."""
+    staged = engine.staged(netlist, prop, budget, options)
+    if isinstance(staged, Verdict):
+        verdict = staged.with_choice(staged.engine_reason or reason, time.perf_counter() - started)
+        return _with_figures(verdict, {"ran_on": "this process", "pieces": 1})
+    combined = run_pieces(staged.engine, netlist, prop, staged.pieces, budget, options, runner)
+    verdict = staged.finish(combined)
+    return verdict.with_choice(verdict.engine_reason or reason, time.perf_counter() - started)
+
+
 def _with_figures(verdict: Verdict, extra: dict) -> Verdict:
+    """The verdict with ``extra`` figures it does not have (an engine that ran its pieces here says so itself)."""
     return Verdict(verdict.status, verdict.engine, verdict.prop, verdict.stop, verdict.scope, verdict.seconds,
-                   verdict.counterexample, {**verdict.figures, **extra}, verdict.engine_reason, verdict.certificate)
+                   verdict.counterexample, {**extra, **verdict.figures}, verdict.engine_reason, verdict.certificate)

@@ -11,7 +11,9 @@ The steps, each sound on its own, stop at the first that decides:
 3. **exhaustive simulation** when the circuit has at most
    ``exhaustive_bits`` input bits;
 4. **threshold SAT** (:mod:`sortcheck.engines.gate_sat`) for the rest, in a
-   process that is ended at the deadline.
+   process that is ended at the deadline, or, when the check is run with
+   worker processes or a cluster (:meth:`GatePipeline.staged`), as pieces of
+   threshold ranges on them.
 
 The verdict names the engine of the step that decided; ``figures["steps"]``
 and the engine reason say what every step before it did.
@@ -37,10 +39,11 @@ import time
 from typing import Any
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict
-from sortcheck.engines.gate_sat import GateSatEngine
+from sortcheck.engines.gate_sat import MIN_SPLIT_GATES, GateSatEngine
 from sortcheck.engines.gate_simulation import SimulateEngine, quick_refute
 from sortcheck.engines.isolation import check_in_child
 from sortcheck.engines.lift import LiftEngine, lift_circuit, lifted_verdict
+from sortcheck.engines.pieces import Staged
 from sortcheck.model import GateCircuit, Netlist, Property
 
 #: Random inputs simulated in step 1.
@@ -57,17 +60,20 @@ class GatePipeline:
         input when they do not lift.
     samples : int
         Random inputs of step 1.
+    split_gates : int
+        Step 4 splits into pieces (:meth:`staged`) for circuits of at least
+        this many gates.
     """
 
     name = "auto"
     cooperative = True
 
-    def __init__(self, exhaustive_bits: int = 24, samples: int = SAMPLES):
+    def __init__(self, exhaustive_bits: int = 24, samples: int = SAMPLES, split_gates: int = MIN_SPLIT_GATES):
         self.exhaustive_bits = exhaustive_bits
         self.samples = samples
         self.simulate = SimulateEngine(max_exhaustive_bits=exhaustive_bits)
         self.lift = LiftEngine()
-        self.sat = GateSatEngine(samples=0)  # step 1 has simulated already
+        self.sat = GateSatEngine(samples=0, min_split_gates=split_gates)  # step 1 has simulated already
 
     def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
                 ) -> tuple[StopReason, str] | None:
@@ -79,14 +85,50 @@ class GatePipeline:
         started = time.perf_counter()
         circuit: GateCircuit = netlist  # type: ignore[assignment]
         steps: list[str] = []
+        verdict = self._before_sat(circuit, prop, budget, options, steps)
+        if verdict is None:
+            verdict = self._threshold_sat(circuit, prop, budget, options, steps)
+        return _with_steps(verdict, steps, time.perf_counter() - started)
+
+    def staged(self, netlist: Netlist, prop: Property, budget: Budget, options: Options = Options()
+               ) -> Verdict | Staged:
+        """Steps 1-3 here; then step 4 as pieces of threshold ranges when it splits, else the whole check.
+
+        A :class:`~sortcheck.engines.pieces.Staged` holds the threshold SAT
+        engine's pieces and turns their combined verdict into this check's
+        (with the steps before it).
+
+        >>> from sortcheck.model import Sorts
+        >>> from sortcheck.model.counting import counting_sorter
+        >>> staged = GatePipeline(exhaustive_bits=0, split_gates=0).staged(counting_sorter(4, 3), Sorts(), Budget())
+        >>> staged.engine.name, staged.pieces[0]
+        ('sat', {'kind': 'thresholds', 'low': 0, 'high': 1})
+        """
+        started = time.perf_counter()
+        circuit: GateCircuit = netlist  # type: ignore[assignment]
+        steps: list[str] = []
+        verdict = self._before_sat(circuit, prop, budget, options, steps)
+        pieces = None if verdict is not None or budget.expired() else self.sat.pieces(circuit, prop, options)
+        if verdict is None and (not pieces or len(pieces) < 2):
+            verdict = self._threshold_sat(circuit, prop, budget, options, steps)
+        if verdict is not None:
+            return _with_steps(verdict, steps, time.perf_counter() - started)
+
+        def finish(combined: Verdict) -> Verdict:
+            whole = self._decided(self.sat.whole_verdict(circuit, prop, combined, options), "threshold-sat")
+            return _with_steps(whole, steps, time.perf_counter() - started)
+
+        return Staged(self.sat, pieces, finish)
+
+    def _before_sat(self, circuit: GateCircuit, prop: Property, budget: Budget, options: Options,
+                    steps: list[str]) -> Verdict | None:
+        """Steps 1-3: the verdict of the first that decides, else None."""
         verdict = self._simulation(circuit, prop, budget, steps)
         if verdict is None and self.lift.refusal(circuit, prop, options) is None:
             verdict = self._lifting(circuit, prop, budget, steps)
         if verdict is None and sum(circuit.widths) <= self.exhaustive_bits and not budget.expired():
             verdict = self._decided(self.simulate.check(circuit, prop, budget, options), "exhaustive simulation")
-        if verdict is None:
-            verdict = self._threshold_sat(circuit, prop, budget, options, steps)
-        return _with_steps(verdict, steps, time.perf_counter() - started)
+        return verdict
 
     def _simulation(self, circuit: GateCircuit, prop: Property, budget: Budget, steps: list[str]) -> Verdict | None:
         started = time.perf_counter()

@@ -50,6 +50,7 @@ from sortcheck.engines.gate_certificates import claim_clauses, claim_comments, c
 from sortcheck.engines.gate_simulation import SEED, counterexample_of, quick_refute
 from sortcheck.engines.gate_spec import ThresholdQuestion, refusal_of, threshold_question, variable_comments
 from sortcheck.engines.network_cnf import dimacs
+from sortcheck.engines.pieces import combine
 from sortcheck.engines.sat import PROOF_SOLVER, PROOF_SOLVERS
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.errors import PropertyError
@@ -176,8 +177,31 @@ class GateSatEngine:
                                figures["seconds"], found, figures)
         if budget.expired():
             return self._unknown(circuit, prop, None, [], 0, tally, started)
+        pieces = self.pieces(circuit, prop, options)
+        if pieces:
+            return self._in_pieces(circuit, prop, pieces, budget, options, started)
         question = threshold_question(circuit, prop)
         return self._run(circuit, prop, question, None, budget, tally, started)
+
+    def _in_pieces(self, circuit: GateCircuit, prop: Property, pieces: list[dict], budget: Budget, options: Options,
+                   started: float) -> Verdict:
+        """The pieces one after another in this process, each in a solver of its own, and their combined verdict.
+
+        A check that splits always runs as its pieces, so a run on one
+        process reports the counterexample a run on workers reports (the one
+        of the first refuted piece, found by the same solver on the same CNF).
+        """
+        verdicts: list[Verdict | None] = []
+        for piece in pieces:
+            if budget.expired():
+                break
+            verdicts.append(self.check_piece(circuit, prop, piece, budget, options))
+            if verdicts[-1].status is not Status.PROVED:
+                break
+        verdicts += [None] * (len(pieces) - len(verdicts))
+        combined = combine(self.name, prop, verdicts, "this process", time.perf_counter() - started)
+        combined.figures["simulated"] = self.samples
+        return self.whole_verdict(circuit, prop, combined, options)
 
     # -- pieces -----------------------------------------------------------------------------------------------
 

@@ -15,6 +15,13 @@ It may also offer ``whole_verdict(netlist, prop, verdict, options) ->
 Verdict``, which rewrites the combined verdict (scope, figures) in the words
 of a single check.
 
+An engine whose check runs steps of its own before the part that splits
+(``auto`` for gate circuits: simulation and lifting, then threshold SAT)
+offers instead ``staged(netlist, prop, budget, options) -> Verdict |
+Staged``: it runs those steps in the calling process and returns their
+verdict when they decide (or when the rest does not split, after running it
+whole), else a :class:`Staged` with the pieces of the rest.
+
 A *job* is what a worker needs to run one piece, as plain data: the engine's
 name, the netlist as format v1 text (:func:`sortcheck.load.write.dump_netlist`),
 the property's JSON, the piece, the options and the wall-clock deadline
@@ -26,7 +33,8 @@ order the pieces finished in.
 from __future__ import annotations
 
 import time
-from typing import Any, Sequence
+from dataclasses import dataclass
+from typing import Any, Callable, Sequence
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict
 from sortcheck.load import dump_netlist, parse_netlist
@@ -35,6 +43,19 @@ from sortcheck.model import Netlist, Property, property_from_json
 #: Parsed netlists kept per process (workers receive the same netlist for every piece).
 _PARSED_LIMIT = 4
 _parsed: dict[str, Netlist] = {}
+
+
+@dataclass(frozen=True)
+class Staged:
+    """The rest of a staged check as pieces: the engine whose pieces they are, and how to finish.
+
+    ``finish`` turns the combined verdict of the pieces into the check's
+    verdict (with what the steps before them did).
+    """
+
+    engine: Any
+    pieces: list[dict]
+    finish: Callable[[Verdict], Verdict]
 
 
 def job_data(engine: str, netlist: Netlist, prop: Property, piece: dict, options: Options,

@@ -12,8 +12,12 @@ Rows:
 * enumeration, counted: a random 40-channel network (first layer a perfect
   matching, then 4n random comparators; seed 1), ``--count`` with the
   reduction, as ``sortcheck check --count`` runs it;
-* per-threshold SAT on a gate circuit, when the gate-circuit SAT engine is
-  present (``sortcheck.engines.gate_sat``);
+* per-threshold SAT on a gate circuit (``--engine sat``): its pieces one
+  after another in this process (how ``--jobs 1`` runs them) against 2 local
+  worker processes;
+* ``auto`` on counting sorters, which only threshold SAT decides: the
+  pipeline's steps run here, then the threshold pieces (``--jobs 1`` against
+  ``--jobs 2``);
 * the cut-off: merge exchange without the reduction on 22..27 channels, the
   engine's estimate against the measured times whole and split;
 * Dask: a ``LocalCluster`` of 2 worker processes on loopback, the overhead per
@@ -135,9 +139,9 @@ def row(label: str, whole: float, split: float | None, pieces: int, where: str =
 
 def enumeration_rows(quick: bool, runner) -> None:
     print("\n| check | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
-    n = 27 if quick else 29
-    row(f"merge exchange {n}, no reduction (2^{n} vectors), proved",
-        *whole_and_split(UNREDUCED, build_family("merge-exchange", n), Options(), runner))
+    for n in (27,) if quick else (29, 31):
+        row(f"merge exchange {n}, no reduction (2^{n} vectors), proved",
+            *whole_and_split(UNREDUCED, build_family("merge-exchange", n), Options(), runner))
     network = random_network(38 if quick else 40, 4, 1)
     row(f"random {network.channels} channels, --count, with the reduction",
         *whole_and_split(EnumerateEngine(), network, Options(count=True), runner))
@@ -158,6 +162,22 @@ def gate_rows(quick: bool, runner) -> None:
             print(f"| {family} {words} x {width} | not split by the engine | | |")
             continue
         row(f"{family} {words} words x {width} bits", *whole_and_split(engine, circuit, Options(), runner))
+
+
+def pipeline_rows(quick: bool, runner) -> None:
+    """``sortcheck check`` on gate circuits that only threshold SAT decides: ``--jobs 1`` against ``--jobs 2``."""
+    from sortcheck.engines.distribute import check_split
+    from sortcheck.model.counting import counting_sorter
+
+    print("\n| gate circuit, auto (simulation, lifting, threshold SAT) | --jobs 1 | --jobs 2 | speed-up |\n"
+          "| --- | --- | --- | --- |")
+    for words, width in ((10, 3),) if quick else ((16, 2), (10, 3)):
+        circuit = counting_sorter(words, width)
+        single, one = timed(lambda: check_split(circuit, Sorts(), runner=InProcess(splits=False)))
+        split, two = timed(lambda: check_split(circuit, Sorts(), runner=runner))
+        assert split.status == single.status and split.counterexample == single.counterexample
+        row(f"counting sorter {words} words x {width} bits ({len(circuit.gates)} gates), {single.status.value}", one,
+            two, split.figures["pieces"])
 
 
 def cutoff_rows(runner) -> None:
@@ -222,6 +242,7 @@ def main() -> None:
     with LocalProcesses(2) as runner:
         enumeration_rows(quick, runner)
         gate_rows(quick, runner)
+        pipeline_rows(quick, runner)
         cutoff_rows(runner)
         print(f"\nlocal processes: overhead per piece {overhead_per_piece(runner) * 1000:.1f} ms")
     print("\n" + "\n".join(CPU_NOTES))
