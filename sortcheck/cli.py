@@ -170,6 +170,11 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("--property", metavar="SPEC")
     repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     repair.add_argument("--format", choices=("text", "json"), default="text")
+    repair.add_argument("--jobs", type=_jobs, default=None, metavar="N",
+                        help="worker processes for the search of two changes in a network, split into pieces "
+                             "of first changes (default: the number of cores)")
+    repair.add_argument("--cluster", metavar="ADDRESS",
+                        help="run that search's pieces on a Dask scheduler (tcp://host:8786)")
     repair.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
     repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
 
@@ -387,7 +392,8 @@ def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         text = Path(args.path).read_text(encoding="utf-8") if args.path.endswith(".json") else None
         outcome = repair_circuit(network, prop, Budget.of(args.timeout), text=text)
     else:
-        outcome = repair_network(network, prop, Budget.of(args.timeout))
+        with make_runner(args.jobs, args.cluster) as runner:
+            outcome = repair_network(network, prop, Budget.of(args.timeout), runner=runner)
     if outcome.network is not None and args.output and outcome.status == "repaired":
         write_netlist(outcome.network, args.output)
     report = {"sortcheck_report": 1, "results": [{"path": args.path, "kind": kind_of(network),

@@ -1,4 +1,4 @@
-"""Shared helpers for the loader and property tests."""
+"""Shared helpers for the loader and property tests, and a real Dask cluster on loopback for the split checks."""
 
 from __future__ import annotations
 
@@ -59,3 +59,15 @@ def assert_error(call, error_type: type, source: str, where: str | None, phrase:
     assert text == expected_prefix + error.message
     assert phrase in error.message, text
     return error
+
+
+@pytest.fixture(scope="module")
+def dask_address():
+    """The address of a ``dask.distributed`` LocalCluster of 2 worker processes on 127.0.0.1 (one per module)."""
+    distributed = pytest.importorskip("distributed")
+    cluster = distributed.LocalCluster(processes=True, n_workers=2, threads_per_worker=1, host="127.0.0.1",
+                                       dashboard_address=None)
+    try:
+        yield cluster.scheduler_address
+    finally:
+        cluster.close()

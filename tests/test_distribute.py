@@ -59,17 +59,6 @@ def split_everything(monkeypatch):
 
 
 @pytest.fixture(scope="module")
-def dask_address():
-    distributed = pytest.importorskip("distributed")
-    cluster = distributed.LocalCluster(processes=True, n_workers=2, threads_per_worker=1, host="127.0.0.1",
-                                       dashboard_address=None)
-    try:
-        yield cluster.scheduler_address
-    finally:
-        cluster.close()
-
-
-@pytest.fixture(scope="module")
 def dask_runner(dask_address):
     from sortcheck.engines.distribute import DaskCluster
     with DaskCluster(dask_address) as runner:

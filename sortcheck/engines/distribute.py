@@ -36,9 +36,9 @@ from collections import deque
 from typing import Any, Sequence
 
 from sortcheck.engines import check, choose_engine, get_engine
-from sortcheck.engines.base import Budget, Options, Progress, Status, Verdict
+from sortcheck.engines.base import Budget, Options, Progress, Verdict
 from sortcheck.engines.isolation import EngineFailure, check_in_child
-from sortcheck.engines.pieces import combine, job_data, run_job
+from sortcheck.engines.pieces import combine, decides, job_data, run_job
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
 
@@ -67,7 +67,7 @@ class InProcess:
                 break
             budget.report(number, len(jobs), f"{engine.name}: pieces")
             verdicts[number] = run_job(engine, data, budget.stopped)
-            if verdicts[number].status == Status.REFUTED and not complete:
+            if decides(verdicts[number]) and not complete:
                 break
         return verdicts
 
@@ -174,7 +174,7 @@ class LocalProcesses:
                     verdicts[number] = payload
                     worker.piece = None
                     self._idle.append(worker)
-                    if payload.status == Status.REFUTED and not complete and number < first_refuted:
+                    if decides(payload) and not complete and number < first_refuted:
                         first_refuted = number
                         for other in [w for w in busy.values() if w.piece > number]:
                             busy.pop(other.connection).stop()
@@ -288,7 +288,7 @@ class DaskCluster:
                     future = futures[number]
                     if number < first_refuted and verdicts[number] is None and future.done():
                         verdicts[number] = future.result()
-                        if verdicts[number].status == Status.REFUTED and not complete and number < first_refuted:
+                        if decides(verdicts[number]) and not complete and number < first_refuted:
                             first_refuted = number
                             stop.set(number)
                             self.client.cancel(futures[number + 1:])

@@ -108,6 +108,22 @@ def run_job(engine, data: dict[str, Any], stopped=None) -> Verdict:
     return engine.check_piece(netlist, prop, piece, Budget.of(timeout, stopped=stopped), options)
 
 
+def decides(result: Any) -> bool:
+    """Whether a piece's result makes the pieces after it unneeded: a refuted verdict, or a result that says so.
+
+    Runners run any object with ``name`` and ``check_piece``; a result that
+    is not a :class:`Verdict` (a piece of a repair search) says whether it
+    decides through its ``decisive`` attribute.
+
+    >>> from sortcheck.model import Sorts
+    >>> decides(Verdict(Status.PROVED, "enumerate", Sorts(), StopReason.COVERED, "piece", 0.1, None, {}))
+    False
+    """
+    if isinstance(result, Verdict):
+        return result.status is Status.REFUTED
+    return bool(getattr(result, "decisive", False))
+
+
 def sum_figures(figures: Sequence[dict[str, Any]]) -> dict[str, Any]:
     """Figures of several pieces as one: numbers summed, other values (and those named in ``"shared"``) from the first.
 

@@ -47,15 +47,14 @@ import time
 from dataclasses import dataclass, field
 from typing import Any
 
-import numpy as np
 
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
-from sortcheck.explain.repair_bank import Bank, failing, pack, seed_bank
-from sortcheck.explain.repair_candidates import (  # noqa: F401  (KINDS and replacements: re-exported)
-    KINDS, Change, Comparator, _Counts, _Guide, _Space, advance, all_candidates, apply_changes, guide_for,
-    replacements, scan, search_space)
+from sortcheck.explain.repair_bank import seed_bank
+from sortcheck.explain.repair_candidates import (  # noqa: F401  (KINDS, replacements...: re-exported)
+    KINDS, Change, _Counts, all_candidates, apply_changes, guide_for, replacements, search_space)
+from sortcheck.explain.repair_pieces import split_two_changes, two_change_pieces
+from sortcheck.explain.repair_search import CandidateSearch
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Property, Sorts, check_fits
-from sortcheck.model.semantics import violation
 
 #: Outcome statuses: a proved repair; the property already holds; no repair
 #: within the search; the budget ran out; no engine could decide the property.
@@ -116,6 +115,8 @@ class RepairOutcome:
     counterexamples_added: int = 0
     undecided: int = 0
     verdict: Verdict | None = field(default=None, compare=False)
+    ran_on: str = "this process"
+    pieces: int = 1
 
     def to_json(self) -> dict[str, Any]:
         proof = self.verdict if self.verified else None
@@ -126,96 +127,12 @@ class RepairOutcome:
                 "stats": None if self.network is None else self.network.stats(),
                 "candidates_tried": self.candidates_tried, "verifications": self.verifications,
                 "bank_inputs": self.bank_inputs, "counterexamples_added": self.counterexamples_added,
-                "undecided": self.undecided, "seconds": round(self.seconds, 3)}
-
-
-# ----------------------------------------------------------------------------- the search
-
-
-class _Search:
-    """Verification of candidates in order, with counterexamples fed back to the bank."""
-
-    def __init__(self, network: ComparatorNetwork, prop: Property, budget: Budget, options: RepairOptions,
-                 bank: Bank, counts: _Counts):
-        self.network, self.prop, self.budget, self.options = network, prop, budget, options
-        self.bank, self.counts = bank, counts
-        self.checked: set[tuple[Comparator, ...]] = set()
-        self.timed_out = False
-
-    def check(self, network: ComparatorNetwork) -> Verdict:
-        return check(network, self.prop, engine=self.options.engine, timeout=self.budget.remaining())
-
-    def still_passes(self, network: ComparatorNetwork, since: int) -> bool:
-        """Whether the network gets right every bank input added since position ``since``."""
-        return all(violation(self.prop, vector, network.apply(list(vector))) is None
-                   for vector in self.bank.vectors[since:])
-
-    def verify(self, candidates: list[tuple[Change, ...]], since: int) -> tuple[tuple[Change, ...], ComparatorNetwork,
-                                                                                  Verdict] | None:
-        """The first candidate (a sequence of changes) that a full check proves; None if none."""
-        for changes in candidates:
-            if self.budget.expired():
-                self.timed_out = True
-                return None
-            repaired = apply_changes(self.network, changes)
-            if repaired.comparators in self.checked or not self.still_passes(repaired, since):
-                continue
-            self.checked.add(repaired.comparators)
-            verdict = self.check(repaired)
-            self.counts.verifications += 1
-            if verdict.status == Status.PROVED:
-                return changes, repaired, verdict
-            if verdict.status == Status.REFUTED:
-                self.counts.added += self.bank.add(verdict.counterexample.input)
-            elif verdict.stop == StopReason.TIMEOUT:
-                self.timed_out = True
-                return None
-            else:
-                self.counts.undecided += 1
-        return None
-
-    def state_at(self, index: int) -> np.ndarray:
-        state = self.bank.rows().copy()
-        for comparator in self.network.comparators[:index]:
-            advance(state, comparator)
-        return state
-
-    def one_change(self, space: _Space, guide: _Guide):
-        since = len(self.bank.vectors)
-        survivors = scan(self.network.comparators, self.prop, self.state_at(0), 0, space, guide, self.counts,
-                         self.budget)
-        if survivors is None:
-            self.timed_out = True
-            return None
-        return self.verify([(change,) for _, change in survivors], since)
-
-    def two_changes(self, space: _Space, guide: _Guide):
-        initial = pack(self.bank.vectors[:self.bank.initial], self.network.channels)
-        for _, first in all_candidates(self.network.comparators, space, guide):
-            if self.budget.expired():
-                self.timed_out = True
-                return None
-            changed = first.apply(self.network.comparators)
-            flags = failing(changed, self.prop, initial, self.bank.initial)
-            witness = self.bank.vectors[int(np.argmax(flags))] if flags.any() else None
-            second_guide = guide_for(changed, self.network.channels, self.prop, witness)
-            start = first.index if first.kind == "delete" else first.index + 1
-            inner = _Space(space.channels, space.descending, start, space.last + len(changed) - self.network.size,
-                           space.witness_inserts_only)
-            since = len(self.bank.vectors)
-            survivors = scan(changed, self.prop, self.state_at(first.index), first.index, inner, second_guide,
-                             self.counts, self.budget)
-            if survivors is None:
-                self.timed_out = True
-                return None
-            found = self.verify([(first, second) for _, second in survivors], since)
-            if found is not None or self.timed_out:
-                return found
-        return None
+                "undecided": self.undecided, "ran_on": self.ran_on, "pieces": self.pieces,
+                "seconds": round(self.seconds, 3)}
 
 
 def repair_network(network: ComparatorNetwork, prop: Property | None = None, budget: Budget = Budget(),
-                   max_changes: int = 2, options: RepairOptions = RepairOptions()) -> RepairOutcome:
+                   max_changes: int = 2, options: RepairOptions = RepairOptions(), runner=None) -> RepairOutcome:
     """Find the fewest changes (at most ``max_changes``) after which ``network`` has ``prop``, proved.
 
     Parameters
@@ -228,6 +145,11 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
     max_changes : int
         1 or 2 (more is allowed but grows as the number of candidates to that power).
     options : RepairOptions
+    runner : optional
+        A runner of :mod:`sortcheck.engines.distribute` (local worker
+        processes, a Dask cluster): the two-change stage runs on it as pieces
+        of first changes (:mod:`sortcheck.explain.repair_pieces`), with the
+        same outcome.  None, or a runner that does not split, searches here.
 
     Returns
     -------
@@ -254,11 +176,14 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
     check_fits(prop, network, None)
     counts = _Counts()
 
+    where = {"ran_on": "this process", "pieces": 1}
+
     def outcome(status, reason, searched="", found=None, bank=None):
         changes, repaired, verdict = found or ((), None, None)
         return RepairOutcome(status, tuple(changes), repaired, verdict is not None and verdict.status == Status.PROVED,
                              counts.tried, counts.verifications, time.perf_counter() - started, reason, searched,
-                             0 if bank is None else len(bank.vectors), counts.added, counts.undecided, verdict)
+                             0 if bank is None else len(bank.vectors), counts.added, counts.undecided, verdict,
+                             where["ran_on"], where["pieces"])
 
     first = check(network, prop, engine=options.engine, timeout=budget.remaining())
     counts.verifications += 1
@@ -272,9 +197,17 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
                      options.complete_bank, options.seed)
     guide = guide_for(network.comparators, network.channels, prop, first.counterexample.input)
     space, searched = search_space(network, prop, guide, options.max_candidates)
-    search = _Search(network, prop, budget, options, bank, counts)
+    search = CandidateSearch(network, prop, budget, options.engine, bank, counts)
     for changes in range(1, max_changes + 1):
-        found = search.one_change(space, guide) if changes == 1 else search.two_changes(space, guide)
+        if changes == 1:
+            found = search.one_change(space, guide)
+        elif getattr(runner, "splits", runner is not None):
+            pieces = two_change_pieces(search, space, guide, first.counterexample.input, options.engine,
+                                       options.max_candidates)
+            found, where["pieces"] = split_two_changes(search, pieces, runner)
+            where["ran_on"] = runner.ran_on
+        else:
+            found = search.two_changes(space, guide)
         if found is not None:
             done = len(found[0])
             return outcome("repaired", f"{done} change{'s' * (done > 1)} make the network {prop.describe()}, proved "

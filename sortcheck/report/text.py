@@ -168,6 +168,7 @@ def format_repair(path: str, outcome, written: str | None) -> str:
         lines.append(f"{INDENT}suspect gates, most likely first:")
         shown = enumerate(suspects[:TEXT_SUSPECTS], 1)
         lines += [f"{INDENT}  {rank}. {suspect.describe()}" for rank, suspect in shown]
+    where = f" in {outcome.pieces} pieces on {outcome.ran_on}" if getattr(outcome, "pieces", 1) > 1 else ""
     lines.append(f"{INDENT}{outcome.candidates_tried:,} candidates tried, {outcome.verifications} full checks, "
-                 f"{outcome.seconds:.2f} s; searched {outcome.searched}")
+                 f"{outcome.seconds:.2f} s{where}; searched {outcome.searched}")
     return "\n".join(lines) + "\n"
