@@ -18,6 +18,9 @@ Rows:
 * ``auto`` on counting sorters, which only threshold SAT decides: the
   pipeline's steps run here, then the threshold pieces (``--jobs 1`` against
   ``--jobs 2``);
+* ``repair`` of merge exchange networks with two (or four) comparators
+  removed: the two-change search in one process against its pieces of first
+  changes on 2 worker processes;
 * the cut-off: merge exchange without the reduction on 22..27 channels, the
   engine's estimate against the measured times whole and split;
 * Dask: a ``LocalCluster`` of 2 worker processes on loopback, the overhead per
@@ -133,6 +136,8 @@ CPU_NOTES: list[str] = []
 def row(label: str, whole: float, split: float | None, pieces: int, where: str = "2 processes") -> None:
     if split is None:
         print(f"| {label} | {whole:.2f} s | not split | |")
+    elif pieces < 2:
+        print(f"| {label} | {whole:.2f} s | {split:.2f} s (run whole: below the split size) | |")
     else:
         print(f"| {label} | {whole:.2f} s | {split:.2f} s ({pieces} pieces) | {whole / split:.2f}x on {where} |")
 
@@ -178,6 +183,24 @@ def pipeline_rows(quick: bool, runner) -> None:
         assert split.status == single.status and split.counterexample == single.counterexample
         row(f"counting sorter {words} words x {width} bits ({len(circuit.gates)} gates), {single.status.value}", one,
             two, split.figures["pieces"])
+
+
+def repair_rows(quick: bool, runner) -> None:
+    """``sortcheck repair`` of networks that need two changes (or have no repair within two): one process
+    against the two-change stage's pieces on 2 worker processes; both must find the same repair."""
+    from sortcheck.explain.repair import repair_network
+    from sortcheck.model.families import merge_exchange
+
+    print("\n| repair, two changes | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
+    cases = [(16, (10, 40))] if quick else [(16, (10, 40)), (20, (15, 70)), (12, (3, 10, 20, 30))]
+    for n, removed in cases:
+        network = merge_exchange(n)
+        broken = ComparatorNetwork(n, tuple(c for i, c in enumerate(network.comparators) if i not in removed))
+        single, one = timed(lambda: repair_network(broken, Sorts(), Budget.of(600), max_changes=2))
+        split, two = timed(lambda: repair_network(broken, Sorts(), Budget.of(600), max_changes=2, runner=runner))
+        assert split.changes == single.changes and split.status == single.status
+        label = f"merge exchange {n} without comparators {', '.join(map(str, removed))}: {single.status}"
+        row(f"{label} ({single.candidates_tried:,} candidates)", one, two, split.pieces)
 
 
 def cutoff_rows(runner) -> None:
@@ -243,6 +266,7 @@ def main() -> None:
         enumeration_rows(quick, runner)
         gate_rows(quick, runner)
         pipeline_rows(quick, runner)
+        repair_rows(quick, runner)
         cutoff_rows(runner)
         print(f"\nlocal processes: overhead per piece {overhead_per_piece(runner) * 1000:.1f} ms")
     print("\n" + "\n".join(CPU_NOTES))
