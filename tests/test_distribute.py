@@ -397,3 +397,25 @@ def test_auto_for_gate_circuits_decided_before_threshold_sat_runs_here():
         verdict = check_split(lower_network(merge_exchange(8), 8, style="mux"), Sorts(), runner=local)
     assert verdict.status is Status.PROVED and verdict.figures["method"] == "lift"
     assert verdict.figures["ran_on"] == "this process" and verdict.figures["pieces"] == 1
+
+
+def test_a_dask_worker_gets_glibc_thresholds_that_suit_numpy(monkeypatch):
+    from sortcheck.engines import distribute
+
+    calls = []
+
+    class FakeLibc:
+        def mallopt(self, parameter, value):
+            calls.append((parameter, value))
+            return 1
+
+    monkeypatch.setattr(distribute.ctypes, "CDLL", lambda name: FakeLibc())
+    monkeypatch.setattr(distribute, "_allocator_tuned", False)
+    monkeypatch.delenv("MALLOC_TRIM_THRESHOLD_", raising=False)
+    distribute._roomier_allocator()
+    assert calls == []  # not under a Dask nanny: nothing changes
+    monkeypatch.setenv("MALLOC_TRIM_THRESHOLD_", "65536")  # what the nanny sets
+    monkeypatch.setattr(distribute.sys, "platform", "linux")
+    distribute._roomier_allocator()
+    distribute._roomier_allocator()  # once per process
+    assert calls == [(-1, 64 << 20), (-3, 32 << 20)]  # M_TRIM_THRESHOLD, M_MMAP_THRESHOLD (glibc malloc.h)

@@ -4,6 +4,7 @@ Run from the repository root (best on a quiet machine; the load is printed)::
 
     python tests/benchmarks/bench_distribute.py          # everything (about two minutes)
     python tests/benchmarks/bench_distribute.py --quick  # smaller checks
+    python tests/benchmarks/bench_distribute.py --dask   # the Dask rows alone
 
 Rows:
 
@@ -185,7 +186,7 @@ def pipeline_rows(quick: bool, runner) -> None:
             two, split.figures["pieces"])
 
 
-def repair_rows(quick: bool, runner) -> None:
+def repair_rows(quick: bool, runner, where: str = "2 processes") -> None:
     """``sortcheck repair`` of networks that need two changes (or have no repair within two): one process
     against the two-change stage's pieces on 2 worker processes; both must find the same repair."""
     from sortcheck.explain.repair import repair_network
@@ -200,7 +201,7 @@ def repair_rows(quick: bool, runner) -> None:
         split, two = timed(lambda: repair_network(broken, Sorts(), Budget.of(600), max_changes=2, runner=runner))
         assert split.changes == single.changes and split.status == single.status
         label = f"merge exchange {n} without comparators {', '.join(map(str, removed))}: {single.status}"
-        row(f"{label} ({single.candidates_tried:,} candidates)", one, two, split.pieces)
+        row(f"{label} ({single.candidates_tried:,} candidates)", one, two, split.pieces, where)
 
 
 def cutoff_rows(runner) -> None:
@@ -249,6 +250,7 @@ def dask_rows(quick: bool) -> None:
         print("\n| check | 1 process | split | speed-up |\n| --- | --- | --- | --- |")
         row(f"merge exchange {n}, no reduction, proved",
             *whole_and_split(UNREDUCED, build_family("merge-exchange", n), Options(), runner), where="Dask")
+        repair_rows(True, runner, where="Dask")
 
 
 def cli_start() -> float:
@@ -259,6 +261,9 @@ def cli_start() -> float:
 
 def main() -> None:
     quick = "--quick" in sys.argv
+    if "--dask" in sys.argv:  # the Dask rows alone
+        dask_rows(quick)
+        return
     print(f"{load()}; python {sys.version.split()[0]}")
     print(f"two independent busy processes do {capacity():.2f}x the work of one right now (2.00x when idle): "
           f"the most any split can gain")
