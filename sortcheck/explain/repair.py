@@ -38,7 +38,10 @@ the bank run are in :mod:`sortcheck.explain.repair_candidates`).
 
 The bank only removes candidates that really fail (each bank input is an
 input in scope), so the repair found does not depend on the bank; the bank
-decides only how many full checks it takes.
+decides only how many full checks it takes.  That is also why the
+two-change stage can run as pieces of first changes on worker processes or
+a Dask cluster (``runner``; :mod:`sortcheck.explain.repair_pieces`), each
+with a bank of its own, and find the same repair.
 """
 
 from __future__ import annotations
@@ -46,7 +49,6 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass, field
 from typing import Any
-
 
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
 from sortcheck.explain.repair_bank import seed_bank
