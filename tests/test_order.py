@@ -41,3 +41,40 @@ def test_the_sat_engine_uses_them_on_large_transposition_networks():
     assert verdict.status == Status.PROVED and verdict.figures["decided"] == "order relations"
     values = list(range(300, 0, -1))
     assert not breaks(Sorts(), values, run(build_family("odd-even-transposition", 300).comparators, values))
+
+
+def recorded_relations(monkeypatch):
+    """Record the networks the sat engine asks the relation test about (the real test still answers)."""
+    from sortcheck.engines import sat
+
+    asked = []
+
+    def recording(channels, comparators, descending, budget):
+        asked.append(channels)
+        return relations_prove_sorted(channels, comparators, descending, budget)
+
+    monkeypatch.setattr(sat, "relations_prove_sorted", recording)
+    return asked
+
+
+def test_shallow_networks_are_left_to_the_structural_split(monkeypatch):
+    # merge exchange 256 has depth 36 <= log2(256)^2 = 64 (Knuth, TAOCP vol. 3, 5.3.4: depth k(k+1)/2, n = 2^k)
+    asked = recorded_relations(monkeypatch)
+    verdict = check(build_family("merge-exchange", 256), Sorts(), engine="sat")
+    assert verdict.status is Status.PROVED and verdict.figures["decided"] == "split" and asked == []
+
+
+def test_deep_networks_try_relations_first(monkeypatch):
+    asked = recorded_relations(monkeypatch)
+    verdict = check(build_family("insertion", 80), Sorts(), engine="sat")  # depth 2n - 3 = 157 > 7^2
+    assert verdict.status is Status.PROVED and verdict.figures["decided"] == "order relations" and asked == [80]
+
+
+def test_relations_are_tried_once_before_the_sat_call_on_the_property(monkeypatch):
+    from sortcheck.engines.sat import SatEngine
+
+    asked = recorded_relations(monkeypatch)
+    # without the split, merge exchange 32 is one question of 2^32 vectors: relations (which fail on it) come
+    # before the SAT call, once
+    verdict = SatEngine(split=False).check(build_family("merge-exchange", 32), Sorts(), Budget())
+    assert verdict.status is Status.PROVED and verdict.figures["decided"] == "sat" and asked == [32]

@@ -38,6 +38,7 @@ measurements).
 
 from __future__ import annotations
 
+import math
 import time
 from dataclasses import dataclass, field
 
@@ -81,6 +82,10 @@ class _Interrupted(Exception):
     """The deadline passed inside a check."""
 
 
+class _ProvedByRelations(Exception):
+    """Order relations showed that the checked network sorts (see :mod:`sortcheck.engines.order`)."""
+
+
 @dataclass
 class _Tally:
     """Figures gathered over one check."""
@@ -100,6 +105,8 @@ class _Tally:
     network: str = ""
     calls: list = field(default_factory=list)
     enumerated: list = field(default_factory=list)
+    #: Order relations are still to be tried on the checked network (a sort, not yet tried).
+    relations_pending: bool = False
 
 
 
@@ -223,19 +230,21 @@ class SatEngine(BlockSteps):
             failing = _simulate(network, prop, self.simulation_rounds, budget) if self.simulation_rounds else None
             if failing is not None:
                 return self._refuted(network, prop, failing, tally, "random simulation", started)
-            if isinstance(prop, Sorts) and relations_prove_sorted(network.channels, network.comparators,
-                                                                  prop.order == "descending", budget):
-                figures = self._figures(tally, "order relations", started)
-                scope = (f"every input on {network.channels} channels, of any values: order relations that hold "
-                         f"for every input, propagated through all {network.size} comparators, put every "
-                         f"adjacent pair of outputs in order (a direct argument on values; the 0-1 principle "
-                         f"is not needed)")
-                material = (CertificateMaterial("order-relations", relations={
-                    "channels": network.channels, "descending": prop.order == "descending"})
-                    if options.certify else None)
-                return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None,
-                               figures, certificate=material)
+            tally.relations_pending = isinstance(prop, Sorts)
+            if network.depth > math.ceil(math.log2(max(2, network.channels))) ** 2:
+                self._try_relations(network, prop, budget, tally)
             failing, decided = self._prove(network, prop, budget, tally)
+        except _ProvedByRelations:
+            figures = self._figures(tally, "order relations", started)
+            scope = (f"every input on {network.channels} channels, of any values: order relations that hold "
+                     f"for every input, propagated through all {network.size} comparators, put every "
+                     f"adjacent pair of outputs in order (a direct argument on values; the 0-1 principle "
+                     f"is not needed)")
+            material = (CertificateMaterial("order-relations", relations={
+                "channels": network.channels, "descending": prop.order == "descending"})
+                if options.certify else None)
+            return Verdict(Status.PROVED, self.name, prop, StopReason.COVERED, scope, figures["seconds"], None,
+                           figures, certificate=material)
         except _Interrupted:
             return self._unknown(network, prop, tally, started)
         if failing is not None:
@@ -306,7 +315,27 @@ class SatEngine(BlockSteps):
             decided = self._by_blocks(network, groups, comparators, target, budget, tally)
             if decided is not None:
                 return decided
+        if not isinstance(target, tuple):  # the property itself, before the largest SAT question
+            self._try_relations(network, target, budget, tally)
         return self._solve(network, groups, comparators, target, budget, tally), "sat"
+
+    def _try_relations(self, network: ComparatorNetwork, prop: Property, budget: Budget, tally: _Tally) -> None:
+        """Raise :class:`_ProvedByRelations` when propagated order relations show the whole network sorts.
+
+        Tried once per check, and only on the checked network itself (not on
+        the sub-networks of :mod:`sortcheck.engines.sat_blocks`): first, when
+        the network is deeper than ``ceil(log2 n)^2`` (odd-even transposition
+        and insertion networks, depth about n, which relations prove at any
+        size and the split does not), else only before the SAT call on the
+        property.  Batcher's and the pairwise networks are shallower (depth
+        ``k(k+1)/2`` for ``n = 2^k``); relations fail on them, and at 2048
+        channels took 3.5 s of a 9 s check when they came first.
+        """
+        if not tally.relations_pending or tally.blocks.depth:
+            return
+        tally.relations_pending = False
+        if relations_prove_sorted(network.channels, network.comparators, prop.order == "descending", budget):
+            raise _ProvedByRelations
 
     # -- the two ways to check a part -------------------------------------------------------------------------
 
