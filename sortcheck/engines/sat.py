@@ -134,8 +134,11 @@ def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: B
             spread = rng.integers(0, n + 1, size=lanes // 2)
             middle = np.clip(np.rint(rng.normal(n / 2, max(1.0, np.sqrt(n) / 2), size=lanes - lanes // 2)), 0, n)
             weights = np.concatenate([spread, middle.astype(np.int64)])
-            ranks = rng.random((lanes, n)).argsort(axis=1).argsort(axis=1)
-            bits = (ranks < weights[:, None]).T
+            # lane i: ones on the weights[i] channels of smallest random key (a uniformly random set of that
+            # size), found with one sort: those keys are at most the weights[i]-th smallest
+            keys = rng.random((lanes, n))
+            cut = np.sort(keys, axis=1)[np.arange(lanes), np.clip(weights - 1, 0, n - 1)]
+            bits = ((keys <= cut[:, None]) & (weights[:, None] > 0)).T
         packed = np.ascontiguousarray(np.packbits(bits, axis=1, bitorder="little")).view("<u8")
         rows = [packed[c].copy() for c in range(n)]
         _apply_within(rows, list(network.comparators), np.empty(lanes // 64, dtype=np.uint64), budget)
