@@ -89,7 +89,7 @@ def test_dask_finds_the_single_search_repair(dask_address):
 def test_pieces_partition_the_first_changes_in_order():
     network, prop, _ = CASES[0]
     search, space, guide, example = the_search(network, prop)
-    pieces = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, pieces=7)
+    pieces = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, 0, pieces=7)
     firsts = len(all_candidates(network.comparators, space, guide))
     assert [p["first"][0] for p in pieces][0] == 0 and pieces[-1]["first"][1] == firsts
     assert all(a["first"][1] == b["first"][0] for a, b in zip(pieces, pieces[1:]))
@@ -101,7 +101,7 @@ def test_pieces_partition_the_first_changes_in_order():
 def test_a_piece_of_another_search_is_refused_not_misread():
     network, prop, _ = CASES[0]
     search, space, guide, example = the_search(network, prop)
-    piece = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, pieces=4)[0]
+    piece = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, 0, pieces=4)[0]
     with pytest.raises(ValueError, match="does not fit"):
         TwoChangePieces().check_piece(network, prop, {**piece, "of": piece["of"] + 1}, Budget())
     with pytest.raises(ValueError, match="not a piece of a repair"):

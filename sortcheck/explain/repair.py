@@ -54,7 +54,7 @@ from sortcheck.engines import Budget, Status, StopReason, Verdict, check
 from sortcheck.explain.repair_bank import seed_bank
 from sortcheck.explain.repair_candidates import (  # noqa: F401  (KINDS, replacements...: re-exported)
     KINDS, Change, _Counts, all_candidates, apply_changes, guide_for, replacements, search_space)
-from sortcheck.explain.repair_pieces import piece_count, split_two_changes, two_change_pieces
+from sortcheck.explain.repair_pieces import split_two_changes, two_change_pieces
 from sortcheck.explain.repair_search import CandidateSearch
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Property, Sorts, check_fits
 
@@ -205,9 +205,8 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
             found = search.one_change(space, guide)
             one_change_candidates = counts.tried
         elif getattr(runner, "splits", runner is not None):
-            firsts = len(all_candidates(network.comparators, space, guide))
             pieces = two_change_pieces(search, space, guide, first.counterexample.input, options.engine,
-                                       options.max_candidates, piece_count(firsts, one_change_candidates))
+                                       options.max_candidates, one_change_candidates)
             found, where["pieces"] = split_two_changes(search, pieces, runner)
             where["ran_on"] = runner.ran_on
         else:

@@ -109,8 +109,12 @@ def _first_changes(comparators: tuple, space: _Space, guide: _Guide) -> list:
 
 
 def two_change_pieces(search: CandidateSearch, space: _Space, guide: _Guide, counterexample: tuple[int, ...],
-                      engine: str, max_candidates: int, pieces: int = PIECES) -> list[dict]:
+                      engine: str, max_candidates: int, one_change_candidates: int, pieces: int | None = None
+                      ) -> list[dict]:
     """The pieces of the two-change stage of ``search``, in search order.
+
+    ``pieces`` pieces, or as many as :func:`piece_count` gives for the
+    candidates the one-change stage tried.
 
     >>> from sortcheck.explain.repair_bank import seed_bank
     >>> from sortcheck.model import Sorts
@@ -119,12 +123,12 @@ def two_change_pieces(search: CandidateSearch, space: _Space, guide: _Guide, cou
     >>> guide = guide_for(net.comparators, 4, Sorts(), example)
     >>> space, _ = search_space(net, Sorts(), guide, 10 ** 6)
     >>> search = CandidateSearch(net, Sorts(), Budget(), "auto", seed_bank(net, Sorts(), example), _Counts())
-    >>> cut = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, pieces=4)
+    >>> cut = two_change_pieces(search, space, guide, example, "auto", 10 ** 6, 0, pieces=4)
     >>> [piece["first"] for piece in cut], cut[0]["of"]
     ([[0, 10], [10, 21], [21, 31], [31, 42]], 42)
     """
-    firsts = len(all_candidates(search.network.comparators, space, guide))
-    count = max(1, min(pieces, firsts))
+    firsts = len(_first_changes(search.network.comparators, space, guide))  # kept for the pieces run here
+    count = max(1, min(pieces or piece_count(firsts, one_change_candidates), firsts))
     bounds = [firsts * i // count for i in range(count + 1)]
     bank = ["".join(map(str, vector)) for vector in search.bank.vectors]
     return [{"kind": "repair-two-changes", "first": [bounds[i], bounds[i + 1]], "of": firsts,
