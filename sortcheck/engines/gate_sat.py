@@ -92,6 +92,12 @@ class _Tally:
     certify: bool = False
     calls: list = field(default_factory=list)
 
+    def asked(self, question: ThresholdQuestion, values: tuple[int, int], seconds: float) -> None:
+        """Count one SAT call on the thresholds ``values[0] .. values[1]`` that took ``seconds``."""
+        self.solver_seconds += seconds
+        self.sat_calls += 1
+        self.thresholds_asked += values[1] - values[0] + 1 if question.method == "threshold" else 0
+
 
 def _solve(solver: Solver, assumptions: list[int], budget: Budget) -> bool | None:
     """The solver's answer under ``assumptions``; None when the budget ran out (deadline or stop condition) first."""
@@ -293,9 +299,7 @@ class GateSatEngine:
                 budget.report(number, len(calls), "threshold SAT")
                 began = time.perf_counter()
                 answer = _solve(solver, assumptions, budget)
-                tally.solver_seconds += time.perf_counter() - began
-                tally.sat_calls += 1
-                tally.thresholds_asked += values[1] - values[0] + 1 if question.method == "threshold" else 0
+                tally.asked(question, values, time.perf_counter() - began)
                 if answer is None:
                     return self._unknown(circuit, prop, question, done, len(calls), tally, started, figures)
                 if answer:
@@ -318,9 +322,7 @@ class GateSatEngine:
             clauses = claim_clauses(question, claim)
             began = time.perf_counter()
             answer, model, proof = self._solve_with_proof(clauses, budget)
-            tally.solver_seconds += time.perf_counter() - began
-            tally.sat_calls += 1
-            tally.thresholds_asked += values[1] - values[0] + 1 if question.method == "threshold" else 0
+            tally.asked(question, values, time.perf_counter() - began)
             if answer is None:
                 return self._unknown(circuit, prop, question, done, len(calls), tally, started, figures)
             if answer:
