@@ -15,7 +15,7 @@ from typing import Sequence, TextIO
 
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
-from sortcheck.engines.distribute import InProcess, default_jobs, make_runner
+from sortcheck.engines.runners.distribute import InProcess, default_jobs, make_runner
 from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network

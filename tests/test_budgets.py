@@ -8,7 +8,7 @@ import time
 import pytest
 
 from sortcheck.engines import Budget, Options, Status, StopReason, Verdict, check
-from sortcheck.engines.isolation import EngineFailure, check_in_child
+from sortcheck.engines.runners.isolation import EngineFailure, check_in_child
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import build_family
 

@@ -22,8 +22,8 @@ from strategies import properties_for, reference_holds
 from sortcheck import cli
 from sortcheck.engines import ENGINES
 from sortcheck.engines.base import Budget, Options
-from sortcheck.engines.network_cnf import dimacs, plain_cnf
-from sortcheck.engines.sat import SatEngine
+from sortcheck.engines.networks.cnf import dimacs, plain_cnf
+from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.load import write_netlist
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import build_family

@@ -19,9 +19,9 @@ from pysat.solvers import Solver
 from gate_reference import breaks_words, holds_everywhere, run_gates
 from sortcheck import cli
 from sortcheck.engines.base import Budget, Options, Status
-from sortcheck.engines.gate_certificates import claim_clauses
-from sortcheck.engines.gate_sat import GateSatEngine
-from sortcheck.engines.gate_spec import threshold_question
+from sortcheck.engines.gates.threshold.certificates import claim_clauses
+from sortcheck.engines.gates.threshold.sat import GateSatEngine
+from sortcheck.engines.gates.threshold.spec import threshold_question
 from sortcheck.load import read_netlist, write_netlist
 from sortcheck.model import PartialSort, Selects, Sorts
 from sortcheck.model.counting import counting_sorter

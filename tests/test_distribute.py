@@ -25,11 +25,11 @@ import time
 import pytest
 
 from reference import breaks, run
-from sortcheck.engines import enumeration_pieces
+from sortcheck.engines.networks import enumeration_pieces
 from sortcheck.engines.base import Budget, Options, Status
-from sortcheck.engines.distribute import InProcess, LocalProcesses, check_split, run_pieces
-from sortcheck.engines.enumeration import EnumerateEngine
-from sortcheck.engines.pieces import job_data, job_from_data
+from sortcheck.engines.runners.distribute import InProcess, LocalProcesses, check_split, run_pieces
+from sortcheck.engines.networks.enumeration import EnumerateEngine
+from sortcheck.engines.runners.pieces import job_data, job_from_data
 from sortcheck.load import write_netlist
 from sortcheck.model import ComparatorNetwork, Median, Merges, Selects, Sorts
 from sortcheck.model.families import build_family
@@ -60,7 +60,7 @@ def split_everything(monkeypatch):
 
 @pytest.fixture(scope="module")
 def dask_runner(dask_address):
-    from sortcheck.engines.distribute import DaskCluster
+    from sortcheck.engines.runners.distribute import DaskCluster
     with DaskCluster(dask_address) as runner:
         yield runner
 
@@ -312,7 +312,7 @@ def test_a_deadline_ends_a_split_check_with_unknown(split_everything, request, w
 
 def test_an_unreachable_scheduler_is_a_usage_error_only_when_pieces_need_it(split_everything):
     pytest.importorskip("distributed")
-    from sortcheck.engines.distribute import DaskCluster
+    from sortcheck.engines.runners.distribute import DaskCluster
     from sortcheck.errors import UsageError
 
     runner = DaskCluster("tcp://127.0.0.1:9", connect_seconds=1.0)  # the discard port: nothing listens
@@ -400,7 +400,7 @@ def test_auto_for_gate_circuits_decided_before_threshold_sat_runs_here():
 
 
 def test_a_dask_worker_gets_glibc_thresholds_that_suit_numpy(monkeypatch):
-    from sortcheck.engines import distribute
+    from sortcheck.engines.runners import distribute
 
     calls = []
 

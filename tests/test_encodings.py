@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import z3
 
-from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
 from sortcheck.engines.smt import smtlib_text
 from sortcheck.load import parse_property
 from sortcheck.model import ComparatorNetwork, Gate, Merges, Sorts
@@ -62,8 +62,8 @@ def _golden_cnf(name):
 
 def test_gate_circuit_cnf_matches_its_golden_file():
     from pysat.solvers import Solver
-    from sortcheck.engines.gate_spec import circuit_cnf
-    from sortcheck.engines.network_cnf import dimacs
+    from sortcheck.engines.gates.threshold.spec import circuit_cnf
+    from sortcheck.engines.networks.cnf import dimacs
 
     text, words, clauses = _golden_cnf("gate-circuit-cnf.golden.cnf")
     assert dimacs(*circuit_cnf(_pair_circuit())) == text
@@ -83,8 +83,8 @@ def test_gate_circuit_cnf_matches_its_golden_file():
 
 def test_gate_threshold_conditions_match_their_golden_file():
     from pysat.solvers import Solver
-    from sortcheck.engines.gate_spec import gate_violation_cnf
-    from sortcheck.engines.network_cnf import dimacs
+    from sortcheck.engines.gates.threshold.spec import gate_violation_cnf
+    from sortcheck.engines.networks.cnf import dimacs
     from sortcheck.model import GateCircuit, OutputWord, Sorts
 
     text, words, clauses = _golden_cnf("gate-threshold-conditions.golden.cnf")

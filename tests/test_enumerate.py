@@ -15,8 +15,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
 from sortcheck.engines import Budget, Status, StopReason, check
-from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, at_least, failure_mask
-from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, at_least, failure_mask
+from sortcheck.engines.networks.enumeration import EnumerateEngine
 from sortcheck.model import ComparatorNetwork, Merges, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run

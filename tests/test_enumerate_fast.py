@@ -15,11 +15,11 @@ import time
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
-from sortcheck.engines import compiled
+from sortcheck.engines.networks import compiled
 from sortcheck.engines.base import Budget, Options, Status, StopReason
-from sortcheck.engines.enumeration import EnumerateEngine, redundant_comparators_by_enumeration, vectors_bound
-from sortcheck.engines.product import Layout, NumpyEvaluator, evaluate
-from sortcheck.engines.reduction import merge_groups, reduce_prefix, singleton_groups
+from sortcheck.engines.networks.enumeration import EnumerateEngine, redundant_comparators_by_enumeration, vectors_bound
+from sortcheck.engines.networks.product import Layout, NumpyEvaluator, evaluate
+from sortcheck.engines.networks.reduction import merge_groups, reduce_prefix, singleton_groups
 from sortcheck.model import ComparatorNetwork, Median, Merges, Selects, Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run

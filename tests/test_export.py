@@ -25,7 +25,7 @@ from sortcheck.model import ComparatorNetwork, GateCircuit, Sorts
 from sortcheck.report.export import export_text
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
-GATE_CNF = importlib.util.find_spec("sortcheck.engines.gate_spec") is not None
+GATE_CNF = importlib.util.find_spec("sortcheck.engines.gates.threshold.spec") is not None
 
 #: Corpus circuits whose exported condition takes MiniSat or z3 a second or more (measured): left to the
 #: corpus tests, to keep this file fast.

@@ -14,7 +14,7 @@ from hypothesis import strategies as st
 from pysat.solvers import Solver
 
 from gate_reference import run_gates
-from sortcheck.engines.gate_cnf import CnfBuilder, encode_circuit
+from sortcheck.engines.gates.cnf import CnfBuilder, encode_circuit
 from sortcheck.model import Gate, GateCircuit, OutputWord, Word
 
 OPS = ("and", "or", "nand", "nor", "xor", "xnor", "not", "mux")
@@ -82,7 +82,7 @@ def test_constants_fold_away():
 
 
 def test_word_comparisons_agree_with_python_on_every_pair_of_three_bit_words():
-    from sortcheck.engines.gate_cnf import constant_word, equal_words, less_than
+    from sortcheck.engines.gates.cnf import constant_word, equal_words, less_than
 
     def signed(value):
         return value - 8 if value >= 4 else value
@@ -97,7 +97,7 @@ def test_word_comparisons_agree_with_python_on_every_pair_of_three_bit_words():
 
 
 def test_symbolic_comparison_has_the_right_models():
-    from sortcheck.engines.gate_cnf import less_than
+    from sortcheck.engines.gates.cnf import less_than
 
     builder = CnfBuilder()
     left = [builder.variable(("l", i)) for i in range(3)]

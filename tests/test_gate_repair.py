@@ -18,7 +18,7 @@ from pysat.solvers import Solver
 from gate_reference import breaks_words, holds_everywhere, run_gates, signed_values
 from sortcheck.cli import main
 from sortcheck.engines import Budget
-from sortcheck.engines.gate_cnf import CnfBuilder
+from sortcheck.engines.gates.cnf import CnfBuilder
 from sortcheck.explain.gate_flips import expected_raw, flip_counts
 from sortcheck.explain.gate_repair import GateRepairOptions, change_ops, repair_circuit
 from sortcheck.explain.gate_repair_cnf import alternative_ops, meets_clauses, op_table

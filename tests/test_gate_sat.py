@@ -18,10 +18,10 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget, Status, StopReason
-from sortcheck.engines.gate_sat import GateSatEngine
-from sortcheck.engines.gate_simulation import SimulateEngine
-from sortcheck.engines.pieces import combine
-from sortcheck.engines.gate_spec import gate_violation_cnf, miter_cnf, reference_sorter
+from sortcheck.engines.gates.threshold.sat import GateSatEngine
+from sortcheck.engines.gates.simulation import SimulateEngine
+from sortcheck.engines.runners.pieces import combine
+from sortcheck.engines.gates.threshold.spec import gate_violation_cnf, miter_cnf, reference_sorter
 from sortcheck.load import read_netlist
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word)

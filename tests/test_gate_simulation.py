@@ -16,10 +16,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
 from sortcheck.engines.base import Budget, Status, StopReason
-from sortcheck.engines.gate_simulation import (SimulateEngine, compile_circuit, evaluate_rows, new_table,
+from sortcheck.engines.gates.simulation import (SimulateEngine, compile_circuit, evaluate_rows, new_table,
                                                quick_refute)
-from sortcheck.engines.word_blocks import limbs_to_rows, rows_to_limbs
-from sortcheck.engines.word_corners import random_keys
+from sortcheck.engines.gates.word_blocks import limbs_to_rows, rows_to_limbs
+from sortcheck.engines.gates.word_corners import random_keys
 from sortcheck.load import read_netlist
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word, bit_name)

@@ -19,7 +19,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
 from sortcheck.engines.base import Budget, Status, StopReason
-from sortcheck.engines.lift import LiftEngine, lift_circuit
+from sortcheck.engines.gates.lifting.engine import LiftEngine, lift_circuit
 from sortcheck.load import parse_property
 from sortcheck.model import ComparatorNetwork, Gate, Median, Merges, PartialSort, Selects, Sorts, in_layer_order
 from sortcheck.model.counting import counting_sorter

@@ -5,7 +5,7 @@ from __future__ import annotations
 from hypothesis import given, settings
 
 from sortcheck.engines import Budget, Status, check
-from sortcheck.engines.order import relations_prove_sorted
+from sortcheck.engines.networks.order import relations_prove_sorted
 from sortcheck.model import Sorts
 from sortcheck.model.families import build_family
 from reference import breaks, run
@@ -45,7 +45,7 @@ def test_the_sat_engine_uses_them_on_large_transposition_networks():
 
 def recorded_relations(monkeypatch):
     """Record the networks the sat engine asks the relation test about (the real test still answers)."""
-    from sortcheck.engines import sat
+    from sortcheck.engines.networks import sat
 
     asked = []
 
@@ -71,7 +71,7 @@ def test_deep_networks_try_relations_first(monkeypatch):
 
 
 def test_relations_are_tried_once_before_the_sat_call_on_the_property(monkeypatch):
-    from sortcheck.engines.sat import SatEngine
+    from sortcheck.engines.networks.sat import SatEngine
 
     asked = recorded_relations(monkeypatch)
     # without the split, merge exchange 32 is one question of 2^32 vectors: relations (which fail on it) come

@@ -16,7 +16,7 @@ import json
 import pytest
 
 from sortcheck.engines import Budget
-from sortcheck.engines.distribute import InProcess, LocalProcesses
+from sortcheck.engines.runners.distribute import InProcess, LocalProcesses
 from sortcheck.explain.repair import repair_network
 from sortcheck.explain.repair_bank import seed_bank
 from sortcheck.explain.repair_candidates import _Counts, all_candidates, guide_for, search_space
@@ -76,7 +76,7 @@ def test_pieces_in_this_process_and_on_workers_find_the_single_search_repair(net
 
 
 def test_dask_finds_the_single_search_repair(dask_address):
-    from sortcheck.engines.distribute import DaskCluster
+    from sortcheck.engines.runners.distribute import DaskCluster
 
     network, prop, status = CASES[1]
     single = repair_network(network, prop, max_changes=2)

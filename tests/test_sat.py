@@ -18,9 +18,9 @@ from pysat.solvers import Solver
 
 from sortcheck.engines import check
 from sortcheck.engines.base import Budget, Status, StopReason
-from sortcheck.engines.network_cnf import annotated_dimacs, plain_cnf
-from sortcheck.engines.redundancy import redundant_comparators
-from sortcheck.engines.sat import SatEngine
+from sortcheck.engines.networks.cnf import annotated_dimacs, plain_cnf
+from sortcheck.engines.networks.redundancy import redundant_comparators
+from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.load import parse_netlist
 from sortcheck.model import ComparatorNetwork, PartialSort, Sorts
 from sortcheck.model.families import bitonic, merge_exchange

@@ -18,9 +18,9 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 
 from sortcheck.engines import check
 from sortcheck.engines.base import Budget, Status
-from sortcheck.engines.network_blocks import Reachable, find_blocks
-from sortcheck.engines.network_split import SortedParts
-from sortcheck.engines.sat import SatEngine
+from sortcheck.engines.networks.blocks import Reachable, find_blocks
+from sortcheck.engines.networks.split import SortedParts
+from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import insertion, merge_exchange, pairwise
 from reference import breaks, run

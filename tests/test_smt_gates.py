@@ -19,7 +19,7 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 from sortcheck.engines import Budget, Status, StopReason
 from sortcheck.engines.base import Options
 from sortcheck.engines.smt import SmtEngine, smtlib_text
-from sortcheck.engines.smt_gates import MAX_GATES
+from sortcheck.engines.gates.smt import MAX_GATES
 from sortcheck.model import (ComparatorNetwork, Gate, GateCircuit, Median, Merges, OutputWord, PartialSort, Selects,
                              Sorts, Word)
 from sortcheck.model.counting import counting_sorter

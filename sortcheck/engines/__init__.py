@@ -11,15 +11,15 @@ from __future__ import annotations
 import time
 
 from sortcheck.engines.base import Budget, Counterexample, Engine, Options, Progress, Status, StopReason, Verdict
-from sortcheck.engines.enumeration import EnumerateEngine, redundant_comparators_by_enumeration
-from sortcheck.engines.gate_pipeline import GatePipeline
-from sortcheck.engines.gate_sat import GateSatEngine
-from sortcheck.engines.gate_simulation import SimulateEngine
-from sortcheck.engines.lift import LiftEngine
+from sortcheck.engines.networks.enumeration import EnumerateEngine, redundant_comparators_by_enumeration
+from sortcheck.engines.gates.portfolio import GatePipeline
+from sortcheck.engines.gates.threshold.sat import GateSatEngine
+from sortcheck.engines.gates.simulation import SimulateEngine
+from sortcheck.engines.gates.lifting.engine import LiftEngine
 from sortcheck.engines.smt import SmtEngine
-from sortcheck.engines.isolation import check_in_child
-from sortcheck.engines.redundancy import redundant_comparators as redundant_comparators_by_sat
-from sortcheck.engines.sat import SatEngine
+from sortcheck.engines.runners.isolation import check_in_child
+from sortcheck.engines.networks.redundancy import redundant_comparators as redundant_comparators_by_sat
+from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.engines.sat_routing import RoutedSatEngine
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, Netlist, Property, check_fits

@@ -12,7 +12,7 @@ Two gate circuits with the same input and output words are compared bit for
 bit: random simulation first (bit-parallel), then a miter (the two circuits
 on shared input variables, structurally hashed into one CNF, and "some output
 bit differs") solved by SAT.  When both circuits lift to comparator networks
-(:mod:`sortcheck.engines.lift`: every block proved to put the minimum and
+(:mod:`sortcheck.engines.gates.lifting.engine`: every block proved to put the minimum and
 maximum of two whole words on its outputs), the two networks are compared on
 0-1 inputs instead, which scales to widths a miter never reaches.  A network
 and a gate circuit are compared at the circuit's width, the network lowered
@@ -40,9 +40,9 @@ from typing import Any, Sequence
 import numpy as np
 
 from sortcheck.engines.base import Budget, Status
-from sortcheck.engines.gate_cnf import CnfBuilder, encode_circuit
-from sortcheck.engines.gate_simulation import block_words_for, compile_circuit, evaluate_rows, new_table
-from sortcheck.engines.lift import lift_circuit
+from sortcheck.engines.gates.cnf import CnfBuilder, encode_circuit
+from sortcheck.engines.gates.simulation import block_words_for, compile_circuit, evaluate_rows, new_table
+from sortcheck.engines.gates.lifting.engine import lift_circuit
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.errors import UsageError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Sorts

@@ -1,8 +1,8 @@
 """One ``sat`` engine for the user: comparator networks to the network engine, gate circuits to the gate engine.
 
 >>> from sortcheck.engines.base import Budget
->>> from sortcheck.engines.gate_sat import GateSatEngine
->>> from sortcheck.engines.sat import SatEngine
+>>> from sortcheck.engines.gates.threshold.sat import GateSatEngine
+>>> from sortcheck.engines.networks.sat import SatEngine
 >>> from sortcheck.model import ComparatorNetwork, Sorts
 >>> from sortcheck.model.counting import counting_sorter
 >>> sat = RoutedSatEngine(SatEngine(), GateSatEngine())

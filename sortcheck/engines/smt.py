@@ -1,6 +1,6 @@
 """The ``smt`` engine: comparator networks and gate circuits checked on bit-vector words with an SMT solver.
 
-Gate circuits are encoded gate by gate in :mod:`sortcheck.engines.smt_gates`;
+Gate circuits are encoded gate by gate in :mod:`sortcheck.engines.gates.smt`;
 this module encodes comparator networks and holds the engine.  Every channel is a bit-vector of ``width`` bits and every comparator an
 if-then-else on one comparison (unsigned, or two's complement when the
 property is signed), so the solver reasons about words, not 0-1 vectors.
@@ -24,7 +24,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
-from sortcheck.engines.smt_gates import MAX_GATES, check_circuit, circuit_refusal, circuit_smtlib_text
+from sortcheck.engines.gates.smt import MAX_GATES, check_circuit, circuit_refusal, circuit_smtlib_text
 from sortcheck.engines.smt_words import (SOLVER_ERRORS, WordOrder, cases_done, failure_text,
                                          network_violation_cases, solver_name, unknown_reason, word_value,
                                          words_text, _MISSING)
@@ -209,7 +209,7 @@ def proof_scope(network: ComparatorNetwork, prop: Property, width: int) -> str:
 class SmtEngine:
     """Bit-vector words, comparators as if-then-else, solved by z3 through pysmt.
 
-    Gate circuits go to :mod:`sortcheck.engines.smt_gates` (every gate a
+    Gate circuits go to :mod:`sortcheck.engines.gates.smt` (every gate a
     1-bit term, at the circuit's own width); comparator networks are encoded
     here.  ``cooperative`` is False: z3's timeout is passed on and usually holds, but
     z3 checks it only at points of its own choosing (simplification and

@@ -1,7 +1,7 @@
 """What the ``smt`` engine's two encodings share: the violation of each property on words, and the solver.
 
 Comparator networks (:mod:`sortcheck.engines.smt`) and gate circuits
-(:mod:`sortcheck.engines.smt_gates`) both end in bit-vector terms for the
+(:mod:`sortcheck.engines.gates.smt`) both end in bit-vector terms for the
 input words and the output words; this module states on those terms when
 the outputs break a property, as a list of *cases* (any one true is a
 violation), and turns solver answers into values and stop reasons.

@@ -19,9 +19,9 @@ from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget
 
-from sortcheck.engines.gate_simulation import compile_circuit, evaluate_rows, new_table
-from sortcheck.engines.word_blocks import ints_to_limbs, limbs_to_keys, limbs_to_rows, rows_to_limbs
-from sortcheck.engines.word_checks import failing_lanes
+from sortcheck.engines.gates.simulation import compile_circuit, evaluate_rows, new_table
+from sortcheck.engines.gates.word_blocks import ints_to_limbs, limbs_to_keys, limbs_to_rows, rows_to_limbs
+from sortcheck.engines.gates.word_checks import failing_lanes
 from sortcheck.model import GateCircuit, Property
 
 #: Inputs evaluated per call of the compiled program.

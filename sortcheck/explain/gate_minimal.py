@@ -13,7 +13,7 @@ three phases:
    one is the minimum);
 3. beyond that, ask a SAT solver for a failing input with fewer one bits
    (the CNF of "the circuit breaks the property on this input" from
-   :func:`sortcheck.engines.gate_spec.gate_violation_cnf`, and a totalizer
+   :func:`sortcheck.engines.gates.threshold.spec.gate_violation_cnf`, and a totalizer
    over the input bits), lowering the bound until the solver answers that
    none exists: that answer proves minimality.
 
@@ -33,7 +33,7 @@ from pysat.card import ITotalizer
 from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget, Counterexample
-from sortcheck.engines.gate_spec import gate_violation_cnf
+from sortcheck.engines.gates.threshold.spec import gate_violation_cnf
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.explain.gate_inputs import CircuitFailures, Raw, solve_in_budget, to_raw, to_values
 from sortcheck.explain.shrink import WORD_PASSES, shrink, word_measure

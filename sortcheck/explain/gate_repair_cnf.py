@@ -28,7 +28,7 @@ from typing import Sequence
 
 from pysat.card import CardEnc, EncType
 
-from sortcheck.engines.gate_cnf import CnfBuilder, constant_word, equal_words, less_than
+from sortcheck.engines.gates.cnf import CnfBuilder, constant_word, equal_words, less_than
 from sortcheck.model import GateCircuit, Gate, Median, Merges, PartialSort, Property, Selects, Sorts, bit_name
 from sortcheck.model.circuit import evaluate_op
 from sortcheck.model.semantics import applies

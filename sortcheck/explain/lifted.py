@@ -1,6 +1,6 @@
 """Gate circuits seen as the comparator networks they lift to: values on channels, traces, diagnoses.
 
-A circuit that lifts (:func:`sortcheck.engines.lift.lift_circuit`) computes,
+A circuit that lifts (:func:`sortcheck.engines.gates.lifting.engine.lift_circuit`) computes,
 block by proved block, what its network computes on the words' order keys
 (the words themselves, their two's complement values, or their key bits).
 So an input of the circuit can be followed through the network: channel
@@ -26,7 +26,7 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.lift import Lifting, lift_circuit, network_property
+from sortcheck.engines.gates.lifting.engine import Lifting, lift_circuit, network_property
 from sortcheck.errors import UsageError
 from sortcheck.explain.diagnose import Diagnosis, diagnose_network
 from sortcheck.explain.trace import Trace, trace_network

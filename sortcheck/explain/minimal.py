@@ -31,8 +31,8 @@ import numpy as np
 
 from sortcheck.engines.base import Budget, Counterexample
 
-from sortcheck.engines.bitslice import LANES, MergeInputs, apply_network, failure_mask
-from sortcheck.engines.network_cnf import encode_network, violation_clauses
+from sortcheck.engines.networks.bitslice import LANES, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.networks.cnf import encode_network, violation_clauses
 from sortcheck.explain.diagnose import permutation_of
 from sortcheck.explain.minimal_structure import lower_by_sat, search_by_structure
 from sortcheck.explain.shrink import ZERO_ONE_PASSES, shrink, zero_one_measure

@@ -1,7 +1,7 @@
 """Least failing 0-1 inputs of a network, searched over the counts of ones of its proved sorting parts.
 
 The ``sat`` engine splits a network along its structure
-(:func:`sortcheck.engines.sat.proved_frontier`): just below the root lie
+(:func:`sortcheck.engines.networks.sat.proved_frontier`): just below the root lie
 parts ``G_1 .. G_k`` on disjoint channel sets that cover every channel, each
 proved, together with everything below it, to sort its channels from any
 input; the comparators ``S`` that remain act after them.  So, writing ``P``
@@ -36,10 +36,10 @@ from pysat.card import CardEnc, EncType
 from pysat.formula import IDPool
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.bitslice import apply_network, failure_mask
-from sortcheck.engines.network_split import SortedParts
-from sortcheck.engines.network_cnf import part_clauses
-from sortcheck.engines.sat import proved_frontier
+from sortcheck.engines.networks.bitslice import apply_network, failure_mask
+from sortcheck.engines.networks.split import SortedParts
+from sortcheck.engines.networks.cnf import part_clauses
+from sortcheck.engines.networks.sat import proved_frontier
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.explain.shrink import zero_one_measure
 from sortcheck.model import ComparatorNetwork, Median, Property, Selects, Sorts

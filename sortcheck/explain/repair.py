@@ -148,7 +148,7 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
         1 or 2 (more is allowed but grows as the number of candidates to that power).
     options : RepairOptions
     runner : optional
-        A runner of :mod:`sortcheck.engines.distribute` (local worker
+        A runner of :mod:`sortcheck.engines.runners.distribute` (local worker
         processes, a Dask cluster): the two-change stage runs on it as pieces
         of first changes (:mod:`sortcheck.explain.repair_pieces`), with the
         same outcome.  None, or a runner that does not split, searches here.

@@ -15,7 +15,7 @@ from typing import Iterator, Sequence
 
 import numpy as np
 
-from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
 from sortcheck.model import ComparatorNetwork, Merges, Property, Sorts
 from sortcheck.model.semantics import applies
 

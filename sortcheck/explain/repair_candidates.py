@@ -24,7 +24,7 @@ from typing import Any, Sequence
 import numpy as np
 
 from sortcheck.engines import Budget
-from sortcheck.engines.bitslice import failure_mask
+from sortcheck.engines.networks.bitslice import failure_mask
 from sortcheck.explain.diagnose import diagnose_network, permutation_of
 from sortcheck.model import ComparatorNetwork, Property, Sorts
 

@@ -18,7 +18,7 @@ one, so it is the pair the search in one process finds: that search returns
 the first proved pair in the same order, and a bank only rules out
 candidates that really fail, so each piece's own bank changes how many
 checks it makes, never which pair is first.  A piece that finds a repair
-ends the pieces after it (see :mod:`sortcheck.engines.distribute`).
+ends the pieces after it (see :mod:`sortcheck.engines.runners.distribute`).
 """
 
 from __future__ import annotations
@@ -29,7 +29,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from sortcheck.engines import Budget, Options, Verdict
-from sortcheck.engines.pieces import job_data
+from sortcheck.engines.runners.pieces import job_data
 from sortcheck.explain.repair_bank import Bank
 from sortcheck.explain.repair_candidates import Change, _Counts, _Guide, _Space, all_candidates, guide_for, search_space
 from sortcheck.explain.repair_search import CandidateSearch
@@ -74,7 +74,7 @@ class PieceOutcome:
 
 
 class TwoChangePieces:
-    """The pieces of a repair's two-change stage, behind the piece interface of :mod:`sortcheck.engines.pieces`."""
+    """The pieces of a repair's two-change stage, behind the piece interface of :mod:`sortcheck.engines.runners.pieces`."""
 
     name = "repair"
     cooperative = True
@@ -138,7 +138,7 @@ def two_change_pieces(search: CandidateSearch, space: _Space, guide: _Guide, cou
 
 
 def split_two_changes(search: CandidateSearch, pieces: list[dict], runner) -> tuple[Any, int]:
-    """Run the pieces with ``runner`` (see :mod:`sortcheck.engines.distribute`); the first found pair or None.
+    """Run the pieces with ``runner`` (see :mod:`sortcheck.engines.runners.distribute`); the first found pair or None.
 
     The counts of the pieces up to the deciding one are added to
     ``search.counts``; ``search.timed_out`` is set when a piece before any

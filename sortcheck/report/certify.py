@@ -40,7 +40,7 @@ from pathlib import Path
 from typing import Any
 
 from sortcheck.engines.base import CertificateMaterial, Status, Verdict
-from sortcheck.engines.certificates import canonical, claim_digest, network_digest
+from sortcheck.engines.networks.certificates import canonical, claim_digest, network_digest
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
 from sortcheck.model.semantics import violation

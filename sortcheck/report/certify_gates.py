@@ -1,12 +1,12 @@
 """Certificates of gate circuits: each CNF is the question its claim names, and the claims cover every threshold.
 
 The gate-circuit ``sat`` engine records one CNF and DRUP proof per proved
-question (:mod:`sortcheck.engines.gate_certificates`).  Beside the proof
+question (:mod:`sortcheck.engines.gates.threshold.certificates`).  Beside the proof
 checks of :mod:`sortcheck.report.certify`, a certificate of a gate circuit
 must pass two checks made here:
 
 * **encoding**: the circuit read again from its file is encoded again, and
-  the CNF of each claim (:func:`~sortcheck.engines.gate_certificates.claim_clauses`)
+  the CNF of each claim (:func:`~sortcheck.engines.gates.threshold.certificates.claim_clauses`)
   must equal, clause for clause, the CNF recorded; so a proof speaks about
   this circuit, this property and exactly the thresholds its claim names;
 * **coverage**: the thresholds of the claims, as ranges, must join up to
@@ -28,8 +28,8 @@ from __future__ import annotations
 from typing import Any, Sequence
 
 from sortcheck.engines.base import UnsatCall
-from sortcheck.engines.gate_certificates import MODES, claim_clauses
-from sortcheck.engines.gate_spec import threshold_question
+from sortcheck.engines.gates.threshold.certificates import MODES, claim_clauses
+from sortcheck.engines.gates.threshold.spec import threshold_question
 from sortcheck.model import GateCircuit, PartialSort, Property
 from sortcheck.report.drup import ProofFormatError, parse_dimacs
 

@@ -3,16 +3,16 @@ the property holds, with comments that map variables back to channels (or words 
 
 * comparator networks, DIMACS: the plain Tseitin encoding of the network and
   the property's 0-1 violation condition
-  (:func:`sortcheck.engines.network_cnf.annotated_dimacs`); by the 0-1
+  (:func:`sortcheck.engines.networks.cnf.annotated_dimacs`); by the 0-1
   principle it is unsatisfiable exactly when the property holds for every
   input of any values;
 * comparator networks, SMT-LIB 2: the ``smt`` engine's bit-vector formula
   (:func:`sortcheck.engines.smt.smtlib_text`) at the smallest width that
   holds a distinct value per channel, which covers inputs of any values;
-* gate circuits, DIMACS: the CNF of :mod:`sortcheck.engines.gate_spec`, when
+* gate circuits, DIMACS: the CNF of :mod:`sortcheck.engines.gates.threshold.spec`, when
   that module is present;
 * gate circuits, SMT-LIB 2: the ``smt`` engine's gate-by-gate bit-vector
-  formula (:mod:`sortcheck.engines.smt_gates`) on the circuit's own words.
+  formula (:mod:`sortcheck.engines.gates.smt`) on the circuit's own words.
 
 >>> from sortcheck.model import ComparatorNetwork, Sorts
 >>> text = export_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "smtlib")
@@ -22,9 +22,9 @@ the property holds, with comments that map variables back to channels (or words 
 
 from __future__ import annotations
 
-from sortcheck.engines.network_cnf import annotated_dimacs, dimacs
+from sortcheck.engines.networks.cnf import annotated_dimacs, dimacs
 from sortcheck.engines.smt import default_width, smtlib_text
-from sortcheck.engines.smt_gates import circuit_refusal, circuit_smtlib_text
+from sortcheck.engines.gates.smt import circuit_refusal, circuit_smtlib_text
 from sortcheck.errors import UsageError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property
 
@@ -83,9 +83,9 @@ def _circuit_smtlib(circuit: GateCircuit, prop: Property, source: str | None) ->
 
 def _circuit_dimacs(circuit: Netlist, prop: Property, source: str | None) -> str:
     try:
-        from sortcheck.engines.gate_spec import gate_violation_cnf
+        from sortcheck.engines.gates.threshold.spec import gate_violation_cnf
     except ImportError:
         raise UsageError("DIMACS export of gate circuits is not available in this version (it needs the gate "
-                         "circuit CNF of sortcheck.engines.gate_spec)", source) from None
+                         "circuit CNF of sortcheck.engines.gates.threshold.spec)", source) from None
     clauses, pool, comments = gate_violation_cnf(circuit, prop)
     return dimacs(clauses, pool, [*comments, "unsatisfiable exactly when the circuit meets: " + prop.describe()])

@@ -12,7 +12,7 @@ from dataclasses import dataclass, replace
 from typing import Any, Iterable
 
 from sortcheck.engines import Budget, Options, Progress, Verdict, check
-from sortcheck.engines.distribute import check_split
+from sortcheck.engines.runners.distribute import check_split
 from sortcheck.errors import SortcheckError
 from sortcheck.explain import (
     Diagnosis, Trace, diagnose_network, minimize_network_counterexample, permutation_of, trace_network,
@@ -147,7 +147,7 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
     minimised unless ``minimize`` is false (within ``timeout`` again, or
     :data:`MINIMIZE_SECONDS`), then diagnosed and traced.  ``words`` and
     ``options.width`` group the bits of AIGER and BLIF files.  With a
-    ``runner`` (:mod:`sortcheck.engines.distribute`) a check that splits into
+    ``runner`` (:mod:`sortcheck.engines.runners.distribute`) a check that splits into
     pieces runs them there, and the figures say where the work ran.
     """
     started = time.perf_counter()

@@ -103,7 +103,7 @@ def format_result(result: FileResult) -> list[str]:
             done = f", all {_count(total)} {noun} covered by {evaluated:,} distinct vectors after reduction"
         else:
             done = f", {evaluated:,} of {_count(total)} {noun} evaluated"
-    if "ran_on" in figures:  # where the work ran (see sortcheck.engines.distribute)
+    if "ran_on" in figures:  # where the work ran (see sortcheck.engines.runners.distribute)
         pieces = figures.get("pieces", 1)
         done += f", in {pieces} pieces on {figures['ran_on']}" if pieces > 1 else f", in {figures['ran_on']}"
     lines.append(f"{INDENT}{verdict.engine} in {result.seconds:.2f} s{done}")

@@ -40,10 +40,10 @@ import sys
 import time
 from pathlib import Path
 
-from sortcheck.engines import enumeration_pieces
+from sortcheck.engines.networks import enumeration_pieces
 from sortcheck.engines.base import Budget, Options
-from sortcheck.engines.distribute import InProcess, LocalProcesses, run_pieces
-from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.runners.distribute import InProcess, LocalProcesses, run_pieces
+from sortcheck.engines.networks.enumeration import EnumerateEngine
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import build_family
 
@@ -155,7 +155,7 @@ def enumeration_rows(quick: bool, runner) -> None:
 
 def gate_rows(quick: bool, runner) -> None:
     try:
-        from sortcheck.engines.gate_sat import GateSatEngine
+        from sortcheck.engines.gates.threshold.sat import GateSatEngine
         from sortcheck.model.circuit_builds import build_circuit
     except ImportError:
         print("\nper-threshold SAT: the gate-circuit SAT engine is not in this tree; not measured")
@@ -172,7 +172,7 @@ def gate_rows(quick: bool, runner) -> None:
 
 def pipeline_rows(quick: bool, runner) -> None:
     """``sortcheck check`` on gate circuits that only threshold SAT decides: ``--jobs 1`` against ``--jobs 2``."""
-    from sortcheck.engines.distribute import check_split
+    from sortcheck.engines.runners.distribute import check_split
     from sortcheck.model.counting import counting_sorter
 
     print("\n| gate circuit, auto (simulation, lifting, threshold SAT) | --jobs 1 | --jobs 2 | speed-up |\n"
@@ -241,7 +241,7 @@ def dask_rows(quick: bool) -> None:
     except ImportError:
         print("\nDask: not installed (pip install 'sortcheck[cluster]'); not measured")
         return
-    from sortcheck.engines.distribute import DaskCluster
+    from sortcheck.engines.runners.distribute import DaskCluster
 
     with LocalCluster(processes=True, n_workers=2, threads_per_worker=1, host="127.0.0.1",
                       dashboard_address=None) as cluster, DaskCluster(cluster.scheduler_address) as runner:

@@ -11,7 +11,7 @@ import time
 
 from pysat.solvers import Solver
 
-from sortcheck.engines.network_cnf import dimacs, plain_cnf
+from sortcheck.engines.networks.cnf import dimacs, plain_cnf
 from sortcheck.model import Sorts
 from sortcheck.model.families import build_family
 from sortcheck.report.drup import check_proof, parse_dimacs, parse_proof

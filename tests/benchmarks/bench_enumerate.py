@@ -38,8 +38,8 @@ from pathlib import Path
 import numpy as np
 
 from sortcheck.engines import Budget, check
-from sortcheck.engines import compiled
-from sortcheck.engines.enumeration import EnumerateEngine
+from sortcheck.engines.networks import compiled
+from sortcheck.engines.networks.enumeration import EnumerateEngine
 from sortcheck.model import Sorts
 from sortcheck.model.families import build_family
 

@@ -16,7 +16,7 @@ import time
 from pathlib import Path
 
 from sortcheck.engines.base import Budget, Options
-from sortcheck.engines.gate_sat import GateSatEngine
+from sortcheck.engines.gates.threshold.sat import GateSatEngine
 from sortcheck.load import write_netlist
 from sortcheck.model import Sorts
 from sortcheck.model.counting import counting_sorter

@@ -30,8 +30,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from sortcheck.engines.base import Budget, Status  # noqa: E402
-from sortcheck.engines.gate_sat import GateSatEngine  # noqa: E402
-from sortcheck.engines.gate_spec import miter_cnf, reference_sorter  # noqa: E402
+from sortcheck.engines.gates.threshold.sat import GateSatEngine  # noqa: E402
+from sortcheck.engines.gates.threshold.spec import miter_cnf, reference_sorter  # noqa: E402
 from sortcheck.engines.solving import Interrupted, solve_within  # noqa: E402
 from sortcheck.model import Gate, GateCircuit, Sorts  # noqa: E402
 from sortcheck.model.circuit_builds import build_circuit  # noqa: E402

@@ -7,11 +7,11 @@ Usage::
 For every case the circuit is ``lower_network(merge_exchange(n), w, style)``
 and the question is ``sorts``.  Columns:
 
-* ``lift``: seconds of :func:`sortcheck.engines.lift.lift_circuit` (simulation
+* ``lift``: seconds of :func:`sortcheck.engines.gates.lifting.engine.lift_circuit` (simulation
   signatures, block search, one SAT proof per distinct block shape);
 * ``total``: seconds of ``LiftEngine().check`` (lifting, then the network by
   the comparator engines, ``auto``), and the verdict;
-* ``miter same``: the plain miter (``sortcheck.engines.gate_spec.miter_cnf``) of
+* ``miter same``: the plain miter (``sortcheck.engines.gates.threshold.spec.miter_cnf``) of
   the circuit against the reference sorter (merge exchange lowered in the mux
   style) solved by glucose 4; for the mux style both sides are the same gates
   and structural hashing alone decides it;
@@ -34,8 +34,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from sortcheck.engines.base import Budget  # noqa: E402
-from sortcheck.engines.gate_spec import miter_cnf, reference_sorter  # noqa: E402
-from sortcheck.engines.lift import LiftEngine, lift_circuit  # noqa: E402
+from sortcheck.engines.gates.threshold.spec import miter_cnf, reference_sorter  # noqa: E402
+from sortcheck.engines.gates.lifting.engine import LiftEngine, lift_circuit  # noqa: E402
 from sortcheck.engines.solving import Interrupted, solve_within  # noqa: E402
 from sortcheck.model import Sorts  # noqa: E402
 from sortcheck.model.families import bitonic, merge_exchange  # noqa: E402

@@ -5,7 +5,7 @@ Usage::
     python tests/benchmarks/bench_sat.py [--cap SECONDS] [--sizes 128,256,512,1024] [--baseline-up-to 512]
                                          [--families merge-exchange,bitonic,pairwise] [--before-cap SECONDS]
 
-The baseline is the plain encoding (``sortcheck.engines.network_cnf.plain_cnf``:
+The baseline is the plain encoding (``sortcheck.engines.networks.cnf.plain_cnf``:
 six clauses per comparator and one clause saying some adjacent output pair is
 out of order) solved once by python-sat's cadical195, in a child process that
 is ended at the cap (CaDiCaL cannot be interrupted through python-sat).
@@ -30,8 +30,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from sortcheck.engines.base import Budget  # noqa: E402
-from sortcheck.engines.network_cnf import plain_cnf  # noqa: E402
-from sortcheck.engines.sat import SatEngine  # noqa: E402
+from sortcheck.engines.networks.cnf import plain_cnf  # noqa: E402
+from sortcheck.engines.networks.sat import SatEngine  # noqa: E402
 from sortcheck.model import Sorts  # noqa: E402
 from sortcheck.model.families import build_family  # noqa: E402
 

@@ -40,7 +40,7 @@ from pysat.card import CardEnc, EncType
 from pysat.formula import IDPool
 from pysat.solvers import Solver
 
-from sortcheck.engines.network_cnf import encode_network, violation_clauses
+from sortcheck.engines.networks.cnf import encode_network, violation_clauses
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import build_family
 

@@ -27,7 +27,7 @@ import time
 import numpy as np
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.gate_simulation import SimulateEngine, compile_circuit, evaluate_rows, new_table, \
+from sortcheck.engines.gates.simulation import SimulateEngine, compile_circuit, evaluate_rows, new_table, \
     block_words_for
 from sortcheck.model import Gate, GateCircuit, OutputWord, Sorts, Word, bit_name
 from sortcheck.model.families import build_family

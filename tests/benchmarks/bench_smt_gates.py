@@ -11,7 +11,7 @@ copies (one gate's op flipped).  smt runs under the time budget (default
 (same budget) and the simulate engine on every input when the circuit has at
 most 2^24 of them (``-`` otherwise), each with the ratio smt / baseline.  All
 run in this process, one after the other.
-These runs set :data:`sortcheck.engines.smt_gates.MAX_GATES`.
+These runs set :data:`sortcheck.engines.gates.smt.MAX_GATES`.
 """
 
 from __future__ import annotations
@@ -22,8 +22,8 @@ import platform
 import time
 
 from sortcheck.engines import Budget
-from sortcheck.engines.gate_sat import GateSatEngine
-from sortcheck.engines.gate_simulation import SimulateEngine
+from sortcheck.engines.gates.threshold.sat import GateSatEngine
+from sortcheck.engines.gates.simulation import SimulateEngine
 from sortcheck.engines.smt import SmtEngine
 from sortcheck.model import Gate, Sorts
 from sortcheck.model.circuit_builds import build_circuit

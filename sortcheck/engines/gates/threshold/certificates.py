@@ -4,11 +4,11 @@ Assumptions do not go into a DRUP proof, so with ``Options(certify=True)``
 every question the engine proves is solved as a CNF of its own, and its
 *claim* (JSON-ready) says which CNF that is:
 
-* ``"fixed"``: the threshold CNF of :func:`~sortcheck.engines.gate_spec.threshold_question`
+* ``"fixed"``: the threshold CNF of :func:`~sortcheck.engines.gates.threshold.spec.threshold_question`
   plus one unit clause per bit of the threshold word ``v``, fixing it to
   ``thresholds[0]`` (``== thresholds[1]``);
 * ``"range"``: the threshold CNF plus the unit clause ``low <= v <= high``
-  (:meth:`~sortcheck.engines.gate_spec.ThresholdQuestion.within`);
+  (:meth:`~sortcheck.engines.gates.threshold.spec.ThresholdQuestion.within`);
 * ``"free"``: the threshold CNF with ``v`` free (every threshold at once);
 * ``"miter"``: the miter of a stable partial sort against the stable
   reference sorter (no threshold).
@@ -19,7 +19,7 @@ from its file and compares.
 
 >>> from sortcheck.model import Sorts
 >>> from sortcheck.model.counting import counting_sorter
->>> from sortcheck.engines.gate_spec import threshold_question
+>>> from sortcheck.engines.gates.threshold.spec import threshold_question
 >>> circuit = counting_sorter(3, 2)
 >>> question = threshold_question(circuit, Sorts())
 >>> claim = question_claim(circuit, Sorts(), question, "fixed", (2, 2))
@@ -33,9 +33,9 @@ from __future__ import annotations
 
 from typing import Any
 
-from sortcheck.engines.certificates import canonical
-from sortcheck.engines.gate_cnf import Clause
-from sortcheck.engines.gate_spec import ThresholdQuestion
+from sortcheck.engines.networks.certificates import canonical
+from sortcheck.engines.gates.cnf import Clause
+from sortcheck.engines.gates.threshold.spec import ThresholdQuestion
 from sortcheck.model import GateCircuit, Property
 from sortcheck.model.properties import property_from_json
 

@@ -5,20 +5,20 @@ any ordered values exactly when it does so for every 0-1 input, because
 comparators commute with every monotone map of the values (Knuth, TAOCP
 vol. 3, 5.3.4).  This engine covers the 0-1 inputs in two steps:
 
-1. *reduction* (:mod:`sortcheck.engines.reduction`, networks of at most 64
+1. *reduction* (:mod:`sortcheck.engines.networks.reduction`, networks of at most 64
    channels): the distinct 0-1 vectors a prefix of the network can produce,
    as a product of small sets, each vector with the number of inputs behind it
    and the smallest of them;
 2. *bit-sliced evaluation* of the rest of the network on that product
-   (:mod:`sortcheck.engines.product`), with numpy or, when numba is installed
+   (:mod:`sortcheck.engines.networks.product`), with numpy or, when numba is installed
    and the work is large, with a compiled per-network kernel
-   (:mod:`sortcheck.engines.compiled`).
+   (:mod:`sortcheck.engines.networks.compiled`).
 
 Networks of more than 64 channels (merges only, in practice) are evaluated on
-all their inputs as before (:mod:`sortcheck.engines.bitslice`).
+all their inputs as before (:mod:`sortcheck.engines.networks.bitslice`).
 
 The counterexample is deterministic: with the reduction, the first failing
-vector in the evaluation order of :mod:`sortcheck.engines.product`, reported
+vector in the evaluation order of :mod:`sortcheck.engines.networks.product`, reported
 as the smallest input (read as a binary number, channel ``c`` being bit
 ``c``) that the prefix maps onto it; without it, the failing input of
 smallest index.  Either way it is a real input of the whole network,
@@ -33,14 +33,14 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from sortcheck.engines import compiled
+from sortcheck.engines.networks import compiled
 from sortcheck.engines.base import (Budget, CertificateMaterial, Counterexample, Enumerated, Options, Status,
                                     StopReason, Verdict, refused_verdict)
-from sortcheck.engines.certificates import canonical, network_digest
-from sortcheck.engines.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
-from sortcheck.engines.enumeration_pieces import check_block, estimated_seconds, fits_blocks, piece_list, reduced_layout
-from sortcheck.engines.product import Layout, NumpyEvaluator, evaluate, lanes_of
-from sortcheck.engines.reduction import MAX_CHANNELS, ReducedSpace, first_layer_bound, reduce_prefix, singleton_groups
+from sortcheck.engines.networks.certificates import canonical, network_digest
+from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, failure_mask, first_failing_lane
+from sortcheck.engines.networks.enumeration_pieces import check_block, estimated_seconds, fits_blocks, piece_list, reduced_layout
+from sortcheck.engines.networks.product import Layout, NumpyEvaluator, evaluate, lanes_of
+from sortcheck.engines.networks.reduction import MAX_CHANNELS, ReducedSpace, first_layer_bound, reduce_prefix, singleton_groups
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property
 from sortcheck.model.semantics import violation
 
@@ -185,7 +185,7 @@ class EnumerateEngine:
         return verdict
 
     def pieces(self, netlist: Netlist, prop: Property, options: Options = Options()) -> list[dict] | None:
-        """Blocks of the evaluation order of the reduced vectors (:mod:`sortcheck.engines.enumeration_pieces`).
+        """Blocks of the evaluation order of the reduced vectors (:mod:`sortcheck.engines.networks.enumeration_pieces`).
 
         None when the check is refused, does not go through the reduction,
         gathers certificate material, or is too small to be worth splitting.

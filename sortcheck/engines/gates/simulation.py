@@ -22,9 +22,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict, refused_verdict
-from sortcheck.engines.word_blocks import (ExhaustiveInputs, SampledInputs, WordBlock, limbs_to_keys,
+from sortcheck.engines.gates.word_blocks import (ExhaustiveInputs, SampledInputs, WordBlock, limbs_to_keys,
                                            rows_to_limbs)
-from sortcheck.engines.word_checks import failing_lanes
+from sortcheck.engines.gates.word_checks import failing_lanes
 from sortcheck.errors import PropertyError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Property, bit_name, check_fits
 from sortcheck.model.semantics import violation

@@ -1,9 +1,9 @@
 """Run the pieces of a split check: in this process, on local worker processes, or on a Dask cluster.
 
 :func:`check_split` is :func:`sortcheck.engines.check` with a *runner*: when
-the chosen engine offers ``pieces`` (see :mod:`sortcheck.engines.pieces`)
+the chosen engine offers ``pieces`` (see :mod:`sortcheck.engines.runners.pieces`)
 and splits the check, the runner runs the pieces and
-:func:`~sortcheck.engines.pieces.combine` makes one verdict of them; otherwise
+:func:`~sortcheck.engines.runners.pieces.combine` makes one verdict of them; otherwise
 the check runs whole, in this process.  Every runner gives the same verdict,
 counterexample and counts: the first refuted piece in piece order decides,
 so pieces before it always finish and pieces after it are cancelled.
@@ -39,8 +39,8 @@ from typing import Any, Sequence
 
 from sortcheck.engines import check, choose_engine, get_engine
 from sortcheck.engines.base import Budget, Options, Progress, Verdict
-from sortcheck.engines.isolation import EngineFailure, check_in_child
-from sortcheck.engines.pieces import combine, decides, job_data, run_job
+from sortcheck.engines.runners.isolation import EngineFailure, check_in_child
+from sortcheck.engines.runners.pieces import combine, decides, job_data, run_job
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
 
@@ -413,7 +413,7 @@ def run_pieces(engine, netlist: Netlist, prop: Property, pieces: Sequence[dict],
 
 def _staged(engine, netlist: Netlist, prop: Property, budget: Budget, options: Options, runner, reason: str,
             started: float) -> Verdict:
-    """A check of an engine with steps before its pieces (see :class:`~sortcheck.engines.pieces.Staged`)."""
+    """A check of an engine with steps before its pieces (see :class:`~sortcheck.engines.runners.pieces.Staged`)."""
     staged = engine.staged(netlist, prop, budget, options)
     if isinstance(staged, Verdict):
         verdict = staged.with_choice(staged.engine_reason or reason, time.perf_counter() - started)

@@ -25,7 +25,7 @@ from functools import reduce
 from typing import Any
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict
-from sortcheck.engines.gate_simulation import counterexample_of
+from sortcheck.engines.gates.simulation import counterexample_of
 from sortcheck.engines.smt_words import (SOLVER_ERRORS, WordOrder, cases_done, circuit_violation_cases,
                                          failure_text, solver_name, unknown_reason, _MISSING)
 from sortcheck.errors import PropertyError

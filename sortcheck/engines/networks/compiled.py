@@ -1,7 +1,7 @@
 """Optional compiled kernels: per-network straight-line code, compiled with numba.
 
 numba is an optional accelerator: without it :func:`available` is False and
-the engine uses :class:`~sortcheck.engines.product.NumpyEvaluator`.  With it,
+the engine uses :class:`~sortcheck.engines.networks.product.NumpyEvaluator`.  With it,
 every (network suffix, channel layout, property, mode) gets a kernel whose
 source is generated here: one loop over combinations, one loop over the words
 of the tile, and in that loop every comparator as two machine instructions on
@@ -21,8 +21,8 @@ from typing import Sequence
 
 import numpy as np
 
-from sortcheck.engines.bitslice import LANES
-from sortcheck.engines.product import Layout, Tile
+from sortcheck.engines.networks.bitslice import LANES
+from sortcheck.engines.networks.product import Layout, Tile
 from sortcheck.model import Median, Merges, Property, Selects, Sorts
 
 MODES = ("first", "count", "swaps")
@@ -196,7 +196,7 @@ def get_kernel(key: tuple, source: str, constants: dict[int, int]):
 
 
 class CompiledEvaluator:
-    """The interface of :class:`~sortcheck.engines.product.NumpyEvaluator`, run by compiled kernels.
+    """The interface of :class:`~sortcheck.engines.networks.product.NumpyEvaluator`, run by compiled kernels.
 
     Parameters
     ----------

@@ -1,6 +1,6 @@
 """Every property checked exactly on many lanes of integer words at once.
 
-Inputs and outputs arrive as *keys* (see :mod:`sortcheck.engines.word_blocks`):
+Inputs and outputs arrive as *keys* (see :mod:`sortcheck.engines.gates.word_blocks`):
 arrays ``(lanes, words)`` whose unsigned order is the property's order of the
 values, so one code path serves signed and unsigned words (and ``uint64`` or
 Python-integer arrays alike).  The reference for each lane is ``np.sort`` of

@@ -2,10 +2,10 @@
 
 A check runs in two steps, each sound on its own:
 
-1. **Simulation** (:func:`~sortcheck.engines.gate_simulation.quick_refute`):
+1. **Simulation** (:func:`~sortcheck.engines.gates.simulation.quick_refute`):
    corner cases and seeded random inputs, bit-parallel; most broken circuits
    are refuted here in milliseconds.
-2. **Threshold SAT** (:mod:`sortcheck.engines.gate_spec`): the circuit is
+2. **Threshold SAT** (:mod:`sortcheck.engines.gates.threshold.spec`): the circuit is
    encoded once, with a threshold word ``v`` and the violation "at threshold
    ``v`` the 0-1 vectors the property relates differ".  Narrow words
    (at most :data:`PER_THRESHOLD_WIDTH` bits) are asked one threshold at a
@@ -26,7 +26,7 @@ one at a time; together they cover what :meth:`GateSatEngine.check` covers.
 With ``Options(certify=True)`` every question is solved as a self-contained
 CNF of its own (the threshold fixed by unit clauses, not assumptions) with
 DRUP proof logging, and the proved verdict carries the CNFs, the proofs and
-their claims (:mod:`sortcheck.engines.gate_certificates`); such a check does
+their claims (:mod:`sortcheck.engines.gates.threshold.certificates`); such a check does
 not split.  Without it nothing changes: one incremental solver, assumptions.
 
 >>> from sortcheck.model import Sorts
@@ -46,12 +46,12 @@ from pysat.solvers import Solver
 
 from sortcheck.engines.base import (Budget, CertificateMaterial, Options, Status, StopReason, UnsatCall, Verdict,
                                     refused_verdict)
-from sortcheck.engines.gate_certificates import claim_clauses, claim_comments, claim_text, question_claim
-from sortcheck.engines.gate_simulation import SEED, counterexample_of, quick_refute
-from sortcheck.engines.gate_spec import ThresholdQuestion, refusal_of, threshold_question, variable_comments
-from sortcheck.engines.network_cnf import dimacs
-from sortcheck.engines.pieces import combine
-from sortcheck.engines.sat import PROOF_SOLVER, PROOF_SOLVERS
+from sortcheck.engines.gates.threshold.certificates import claim_clauses, claim_comments, claim_text, question_claim
+from sortcheck.engines.gates.simulation import SEED, counterexample_of, quick_refute
+from sortcheck.engines.gates.threshold.spec import ThresholdQuestion, refusal_of, threshold_question, variable_comments
+from sortcheck.engines.networks.cnf import dimacs
+from sortcheck.engines.runners.pieces import combine
+from sortcheck.engines.networks.sat import PROOF_SOLVER, PROOF_SOLVERS
 from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits

@@ -38,10 +38,10 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict, refused_verdict
-from sortcheck.engines.gate_simulation import counterexample_of, quick_refute
-from sortcheck.engines.lift_blocks import BlockOrder, Signatures, signal_signatures
-from sortcheck.engines.lift_channels import network_of
-from sortcheck.engines.lift_search import BlockProof, BlockSearch
+from sortcheck.engines.gates.simulation import counterexample_of, quick_refute
+from sortcheck.engines.gates.lifting.blocks import BlockOrder, Signatures, signal_signatures
+from sortcheck.engines.gates.lifting.channels import network_of
+from sortcheck.engines.gates.lifting.search import BlockProof, BlockSearch
 from sortcheck.engines.solving import Interrupted
 from sortcheck.errors import PropertyError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property, Sorts, check_fits
@@ -65,13 +65,17 @@ class Lifting:
     input_channels: tuple[int, ...] | None = None
     timed_out: bool = False
     figures: dict[str, Any] = field(default_factory=dict)
+    #: ``blocks``: every block proved min/max on its cone; ``sweeping``: the whole circuit proved equal to
+    #: the network signal by signal (:mod:`sortcheck.engines.gates.lifting.functional`).
+    method: str = "blocks"
 
     @property
     def lifted(self) -> bool:
         return self.network is not None
 
 
-def _order_of(prop: Property, width: int) -> BlockOrder:
+def order_of(prop: Property, width: int) -> BlockOrder:
+    """The order the comparators of a lifted circuit must compare in, for ``prop``."""
     key_bits = prop.key_bits if isinstance(prop, PartialSort) and prop.key_bits < width else None
     return BlockOrder(signed=prop.signed, key_bits=key_bits)
 
@@ -86,7 +90,7 @@ def lift_circuit(circuit: GateCircuit, prop: Property | None = None, budget: Bud
     """
     started = time.perf_counter()
     prop = prop or circuit.claim or Sorts()
-    order = _order_of(prop, circuit.width)
+    order = order_of(prop, circuit.width)
     signatures = signal_signatures(circuit)
     figures: dict[str, Any] = {"signature_seconds": time.perf_counter() - started, "gates": len(circuit.gates)}
     search = BlockSearch(circuit, signatures, order, budget)
@@ -154,8 +158,16 @@ def circuit_input(lifting: Lifting, values: tuple[int, ...], width: int) -> tupl
 
 def _describe_lifting(lifting: Lifting, circuit: GateCircuit, prop: Property) -> str:
     width, n = circuit.width, circuit.words
-    text = (f"lifted to a comparator network of {n} channels: {len(lifting.blocks)} blocks of 2 x {width} bits "
-            f"proved to be min/max ({lifting.order.describe()}) by SAT")
+    if lifting.method == "sweeping":
+        sweep = lifting.figures.get("sweep", {})
+        calls = sweep.get("window_calls", 0) + sweep.get("whole_calls", 0)
+        text = (f"lifted to a comparator network of {n} channels and {len(lifting.blocks)} comparators "
+                f"({lifting.order.describe()}), found from what the circuit's signals compute and proved equal to "
+                f"the circuit on every input of {n} words of {width} bits by SAT sweeping ({sweep.get('cut_points', 0)} "
+                f"cut points proved, {calls} SAT calls)")
+    else:
+        text = (f"lifted to a comparator network of {n} channels: {len(lifting.blocks)} blocks of 2 x {width} bits "
+                f"proved to be min/max ({lifting.order.describe()}) by SAT")
     if lifting.input_channels is not None:
         text += (f" (the circuit is the network after a fixed permutation of its input words, which "
                  f"{prop.describe()} does not depend on)")
@@ -210,7 +222,7 @@ class LiftEngine:
     """Gate circuits lifted to comparator networks block by proved block, then checked as networks.
 
     A circuit that does not lift is tried on corner-case and random inputs
-    (:func:`sortcheck.engines.gate_simulation.quick_refute`), which can only
+    (:func:`sortcheck.engines.gates.simulation.quick_refute`), which can only
     refute; otherwise the verdict is ``unknown`` and says why it did not lift.
 
     Parameters

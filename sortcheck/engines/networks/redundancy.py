@@ -23,7 +23,7 @@ import numpy as np
 from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.network_cnf import encode_network
+from sortcheck.engines.networks.cnf import encode_network
 from sortcheck.model import ComparatorNetwork
 
 #: An interruptible python-sat solver, so the budget's deadline holds.

@@ -26,8 +26,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from sortcheck.engines.bitslice import AllVectors
-from sortcheck.engines.word_corners import corner_cases, random_keys
+from sortcheck.engines.networks.bitslice import AllVectors
+from sortcheck.engines.gates.word_corners import corner_cases, random_keys
 from sortcheck.model import Merges, Property
 
 LANES = 64

@@ -1,8 +1,8 @@
 """Pieces of an ``enumerate`` check: blocks of the evaluation order of the reduced vectors.
 
-After the reduction (:mod:`sortcheck.engines.reduction`) the vectors to
+After the reduction (:mod:`sortcheck.engines.networks.reduction`) the vectors to
 evaluate are laid out as tiles times combinations
-(:class:`~sortcheck.engines.product.Layout`) and evaluated tile by tile,
+(:class:`~sortcheck.engines.networks.product.Layout`) and evaluated tile by tile,
 combination by combination, lane by lane.  A *unit* is one (tile,
 combination) pair, numbered ``tile * combinations + combination``; a
 combination fixes the vectors of the outer groups, so a run of units fixes
@@ -27,10 +27,10 @@ from __future__ import annotations
 
 import time
 
-from sortcheck.engines import compiled
+from sortcheck.engines.networks import compiled
 from sortcheck.engines.base import Budget, Counterexample, Options, Status, StopReason, Verdict
-from sortcheck.engines.product import Layout, NumpyEvaluator, Outcome
-from sortcheck.engines.reduction import MAX_CHANNELS, ReducedSpace, merge_groups, reduce_prefix, singleton_groups
+from sortcheck.engines.networks.product import Layout, NumpyEvaluator, Outcome
+from sortcheck.engines.networks.reduction import MAX_CHANNELS, ReducedSpace, merge_groups, reduce_prefix, singleton_groups
 from sortcheck.model import ComparatorNetwork, Merges, Property
 from sortcheck.model.semantics import violation
 
@@ -87,7 +87,7 @@ def reduced_layout(network: ComparatorNetwork, prop: Property, reduction: bool,
 def estimated_seconds(layout: Layout, suffix: int, compiled_kernel: bool, count: bool = False) -> float:
     """Seconds the whole evaluation of ``layout`` through ``suffix`` comparators should take on one core.
 
-    >>> from sortcheck.engines.reduction import singleton_groups
+    >>> from sortcheck.engines.networks.reduction import singleton_groups
     >>> round(estimated_seconds(Layout(ReducedSpace(28, tuple(singleton_groups(28)), (), {}, 2, True)), 160, False), 1)
     2.2
     """
@@ -108,7 +108,7 @@ def split_units(units: int, count: int) -> list[tuple[int, int]]:
 def piece_list(layout: Layout, seconds: float, split_seconds: float | None = None) -> list[dict] | None:
     """The pieces of a layout whose evaluation takes about ``seconds``; None when not worth splitting.
 
-    >>> from sortcheck.engines.reduction import singleton_groups
+    >>> from sortcheck.engines.networks.reduction import singleton_groups
     >>> layout = Layout(ReducedSpace(20, tuple(singleton_groups(20)), (), {}, 2, True))
     >>> [piece["units"] for piece in piece_list(layout, 0.8, split_seconds=0.5)]
     [[0, 5], [5, 10], [10, 16]]
@@ -122,7 +122,7 @@ def piece_list(layout: Layout, seconds: float, split_seconds: float | None = Non
 
 
 def evaluate_units(layout: Layout, evaluator, mode: str, budget: Budget, first: int, stop: int) -> Outcome:
-    """:func:`sortcheck.engines.product.evaluate` restricted to units ``first..stop-1``, in the same order.
+    """:func:`sortcheck.engines.networks.product.evaluate` restricted to units ``first..stop-1``, in the same order.
 
     ``mode`` is ``"first"`` or ``"count"``; ``evaluated`` counts the vectors of
     this range only.

@@ -3,7 +3,7 @@
 A question of the ``sat`` engine reads: after the comparators ``C``, does
 every 0-1 vector that is sorted on each of some *source groups* of channels
 meet a target?  (The source groups are the proved parts of
-:mod:`sortcheck.engines.network_split`; single channels are groups too.)
+:mod:`sortcheck.engines.networks.split`; single channels are groups too.)
 When ``C`` begins with sub-networks ``S_1 .. S_k`` on disjoint channel sets
 ``H_1 .. H_k`` (any channel sets, not necessarily contiguous) followed by the
 rest ``Q``, and each ``S_j`` sorts ``H_j`` on its own, the question shrinks:
@@ -27,7 +27,7 @@ rest ``Q``, and each ``S_j`` sorts ``H_j`` on its own, the question shrinks:
 
 :func:`find_blocks` finds the sub-networks by analysing the comparators
 alone: read in the order that delays joins of channel groups
-(:func:`~sortcheck.engines.network_split.join_delayed_order`), the last join
+(:func:`~sortcheck.engines.networks.split.join_delayed_order`), the last join
 splits the channels into groups that no earlier comparator connects; the
 comparators before that join are the sub-networks, the rest is ``Q``.
 Parberry's pairwise network, once its first layer is a proved part below,
@@ -56,7 +56,7 @@ from typing import Sequence
 
 import numpy as np
 
-from sortcheck.engines.network_split import SortedParts, join_delayed_order, split_tree
+from sortcheck.engines.networks.split import SortedParts, join_delayed_order, split_tree
 from sortcheck.model import ComparatorNetwork
 
 

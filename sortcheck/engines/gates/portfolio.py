@@ -4,13 +4,13 @@ The steps, each sound on its own, stop at the first that decides:
 
 1. **simulation** of corner cases and seeded random inputs (bit-parallel):
    most broken circuits are refuted in milliseconds;
-2. **lifting** (:mod:`sortcheck.engines.lift`): when the circuit is, block
+2. **lifting** (:mod:`sortcheck.engines.gates.lifting.engine`): when the circuit is, block
    by proved block, a comparator network, the network is checked by the
    comparator engines (0-1 principle) -- a 32 x 16-bit sorter becomes a
    32-channel network question;
 3. **exhaustive simulation** when the circuit has at most
    ``exhaustive_bits`` input bits;
-4. **threshold SAT** (:mod:`sortcheck.engines.gate_sat`) for the rest, in a
+4. **threshold SAT** (:mod:`sortcheck.engines.gates.threshold.sat`) for the rest, in a
    process that is ended at the deadline, or, when the check is run with
    worker processes or a cluster (:meth:`GatePipeline.staged`), as pieces of
    threshold ranges on them.
@@ -39,11 +39,11 @@ import time
 from typing import Any
 
 from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict
-from sortcheck.engines.gate_sat import MIN_SPLIT_GATES, GateSatEngine
-from sortcheck.engines.gate_simulation import SimulateEngine, quick_refute
-from sortcheck.engines.isolation import check_in_child
-from sortcheck.engines.lift import LiftEngine, lift_circuit, lifted_verdict
-from sortcheck.engines.pieces import Staged
+from sortcheck.engines.gates.threshold.sat import MIN_SPLIT_GATES, GateSatEngine
+from sortcheck.engines.gates.simulation import SimulateEngine, quick_refute
+from sortcheck.engines.runners.isolation import check_in_child
+from sortcheck.engines.gates.lifting.engine import LiftEngine, lift_circuit, lifted_verdict
+from sortcheck.engines.runners.pieces import Staged
 from sortcheck.model import GateCircuit, Netlist, Property
 
 #: Random inputs simulated in step 1.
@@ -94,7 +94,7 @@ class GatePipeline:
                ) -> Verdict | Staged:
         """Steps 1-3 here; then step 4 as pieces of threshold ranges when it splits, else the whole check.
 
-        A :class:`~sortcheck.engines.pieces.Staged` holds the threshold SAT
+        A :class:`~sortcheck.engines.runners.pieces.Staged` holds the threshold SAT
         engine's pieces and turns their combined verdict into this check's
         (with the steps before it).
 

@@ -5,7 +5,7 @@ A check runs in three steps, each sound on its own:
 1. **Random simulation.**  Bit-parallel runs of random 0-1 inputs (weights
    spread over ``0..n`` and bunched near ``n/2``) refute most broken networks
    in milliseconds.
-2. **Split along the network's structure** (:mod:`sortcheck.engines.network_split`).
+2. **Split along the network's structure** (:mod:`sortcheck.engines.networks.split`).
    Groups of channels that the network sorts on their own (Batcher's
    networks sort halves, quarters, residue classes, ...) are proved one at a
    time, each only on the 0-1 vectors its sorted sub-groups can produce.  A
@@ -14,10 +14,10 @@ A check runs in three steps, each sound on its own:
 3. **The property**, on the whole network, from the proved parts: again by
    enumeration when the vectors are few, else by SAT.  A network with no such
    structure comes down to one SAT call on the whole CNF
-   (:mod:`sortcheck.engines.network_cnf`).
+   (:mod:`sortcheck.engines.networks.cnf`).
 
 Before any question goes to the solver, independent sub-networks on disjoint
-channel sets at its start are looked for (:mod:`sortcheck.engines.sat_blocks`):
+channel sets at its start are looked for (:mod:`sortcheck.engines.networks.sat_blocks`):
 when each sorts on its own (proved by this same engine), only the vectors they
 can hand on are enumerated after them.  That proves Parberry's pairwise network.
 
@@ -48,12 +48,12 @@ from pysat.formula import IDPool
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.engines.base import (Budget, CertificateMaterial, Counterexample, Enumerated, Options, Status,
                                     StopReason, UnsatCall, Verdict, refused_verdict)
-from sortcheck.engines.certificates import canonical, claim_digest, claim_label, network_digest, part_claim
-from sortcheck.engines.bitslice import _descents, apply_network, failure_mask, first_failing_lane
-from sortcheck.engines.network_cnf import dimacs, part_clauses
-from sortcheck.engines.order import relations_prove_sorted
-from sortcheck.engines.network_split import SortedParts, frontier, join_delayed_order, split_tree
-from sortcheck.engines.sat_blocks import BlockSteps, BlockTally
+from sortcheck.engines.networks.certificates import canonical, claim_digest, claim_label, network_digest, part_claim
+from sortcheck.engines.networks.bitslice import _descents, apply_network, failure_mask, first_failing_lane
+from sortcheck.engines.networks.cnf import dimacs, part_clauses
+from sortcheck.engines.networks.order import relations_prove_sorted
+from sortcheck.engines.networks.split import SortedParts, frontier, join_delayed_order, split_tree
+from sortcheck.engines.networks.sat_blocks import BlockSteps, BlockTally
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
 from sortcheck.model.semantics import violation
 
@@ -83,7 +83,7 @@ class _Interrupted(Exception):
 
 
 class _ProvedByRelations(Exception):
-    """Order relations showed that the checked network sorts (see :mod:`sortcheck.engines.order`)."""
+    """Order relations showed that the checked network sorts (see :mod:`sortcheck.engines.networks.order`)."""
 
 
 @dataclass
@@ -190,7 +190,7 @@ class SatEngine(BlockSteps):
         whole network).
     blocks : bool
         Before the solver, look for independent sub-networks that sort on
-        their own (:mod:`sortcheck.engines.sat_blocks`).
+        their own (:mod:`sortcheck.engines.networks.sat_blocks`).
     block_limit : int
         The most vectors one check after such sub-networks may enumerate.
     """
@@ -326,7 +326,7 @@ class SatEngine(BlockSteps):
         """Raise :class:`_ProvedByRelations` when propagated order relations show the whole network sorts.
 
         Tried once per check, and only on the checked network itself (not on
-        the sub-networks of :mod:`sortcheck.engines.sat_blocks`): first, when
+        the sub-networks of :mod:`sortcheck.engines.networks.sat_blocks`): first, when
         the network is deeper than ``ceil(log2 n)^2`` (odd-even transposition
         and insertion networks, depth about n, which relations prove at any
         size and the split does not), else only before the SAT call on the

@@ -1,16 +1,16 @@
-"""Finding and proving min/max blocks of a gate circuit, for :mod:`sortcheck.engines.lift`.
+"""Finding and proving min/max blocks of a gate circuit, for :mod:`sortcheck.engines.gates.lifting.engine`.
 
 Three pieces, each usable on its own:
 
 * :func:`signal_signatures` simulates a circuit on a few hundred biased random
-  inputs (bit-parallel, :mod:`sortcheck.engines.gate_simulation`) and gives
+  inputs (bit-parallel, :mod:`sortcheck.engines.gates.simulation`) and gives
   every signal a *signature*: its values on those inputs.
 * :func:`min_max_rows` computes, bit-sliced, the rows the minimum and maximum
   of two words would have on the same inputs, for a :class:`BlockOrder`
   (unsigned, two's complement, or on the key bits only with a fixed tie rule).
   A block is a candidate when the circuit has signals with exactly those rows.
 * :func:`prove_block` proves a candidate with one SAT call
-  (:mod:`sortcheck.engines.gate_cnf`): the cone of its output signals, cut at
+  (:mod:`sortcheck.engines.gates.cnf`): the cone of its output signals, cut at
   the two input words (which become free variables), equals min/max for
   every value of the words.
 
@@ -26,11 +26,11 @@ from typing import Callable, Sequence
 import numpy as np
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.gate_cnf import CnfBuilder, less_than
-from sortcheck.engines.gate_simulation import FIRST_INPUT_ROW, compile_circuit, evaluate_rows, new_table
+from sortcheck.engines.gates.cnf import CnfBuilder, less_than
+from sortcheck.engines.gates.simulation import FIRST_INPUT_ROW, compile_circuit, evaluate_rows, new_table
 from sortcheck.engines.solving import solve_within
-from sortcheck.engines.word_blocks import limbs_to_rows
-from sortcheck.engines.word_corners import random_keys
+from sortcheck.engines.gates.word_blocks import limbs_to_rows
+from sortcheck.engines.gates.word_corners import random_keys
 from sortcheck.model import Gate, GateCircuit, OutputWord, bit_name, evaluate_op
 from sortcheck.model.circuit import Signal
 

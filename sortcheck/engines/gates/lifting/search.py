@@ -3,15 +3,15 @@
 :class:`BlockSearch` starts from the circuit's input words and, for every pair
 of current channel words, looks up the signals whose signatures are those of
 their minimum and maximum, screens them on random words, proves the block by
-SAT (:func:`sortcheck.engines.lift_blocks.prove_block`) and makes its two
+SAT (:func:`sortcheck.engines.gates.lifting.blocks.prove_block`) and makes its two
 outputs channel words in place of its inputs.  :class:`BlockProof` records one
-lifted block.  :mod:`sortcheck.engines.lift` runs the search and turns its
+lifted block.  :mod:`sortcheck.engines.gates.lifting.engine` runs the search and turns its
 blocks into a comparator network.
 
 >>> from sortcheck.model.families import odd_even_transposition
 >>> from sortcheck.model.lowering import lower_network
 >>> from sortcheck.engines.base import Budget
->>> from sortcheck.engines.lift_blocks import BlockOrder, signal_signatures
+>>> from sortcheck.engines.gates.lifting.blocks import BlockOrder, signal_signatures
 >>> circuit = lower_network(odd_even_transposition(3), 2, style="mux")
 >>> search = BlockSearch(circuit, signal_signatures(circuit), BlockOrder(signed=False), Budget())
 >>> search.run()
@@ -28,7 +28,7 @@ from typing import Any
 import numpy as np
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.lift_blocks import (SEED, Bits, BlockCheck, BlockOrder, Signatures, Word, cone, evaluate_local,
+from sortcheck.engines.gates.lifting.blocks import (SEED, Bits, BlockCheck, BlockOrder, Signatures, Word, cone, evaluate_local,
                                            evaluate_local_rows, gate_map, is_local, min_max_rows, min_max_values,
                                            prove_block, signals_of, simulated_inputs, single)
 from sortcheck.engines.solving import Interrupted

@@ -1,6 +1,6 @@
 """Channels of a lifted network: output words matched to channel words, channels routed or relabelled.
 
-Once :class:`sortcheck.engines.lift_search.BlockSearch` has lifted its
+Once :class:`sortcheck.engines.gates.lifting.search.BlockSearch` has lifted its
 blocks, :func:`network_of` finds the channel word every output word is
 (:func:`output_channels` says which network channel it must be), assigns the
 min and max sides of the blocks to channels (:func:`greedy_channels`, else
@@ -20,8 +20,8 @@ import numpy as np
 from pysat.formula import IDPool
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.lift_blocks import Bits, cone, prove_same
-from sortcheck.engines.lift_search import BlockSearch
+from sortcheck.engines.gates.lifting.blocks import Bits, cone, prove_same
+from sortcheck.engines.gates.lifting.search import BlockSearch
 from sortcheck.engines.solving import solve_within
 from sortcheck.model import ComparatorNetwork, GateCircuit, Median, PartialSort, Property, Selects, Sorts
 
@@ -151,11 +151,28 @@ def channels_hold(channel: list[int], inputs: tuple[int, ...], blocks: list[tupl
 
 
 def network_of(search: BlockSearch, circuit: GateCircuit, prop: Property, budget: Budget):
+    """The network of a block search's blocks, the channel of every input word (None: the identity) and
+    the failure (None when it worked)."""
     matched, failure = _match_outputs(search, circuit)
     if failure is not None:
         return None, None, failure
+    return network_from_blocks(circuit, prop, [block.words for block in search.blocks], matched, budget)
+
+
+def network_from_blocks(circuit: GateCircuit, prop: Property, blocks: list[tuple[int, int, int, int]],
+                        matched: list[int], budget: Budget):
+    """The comparator network of ``blocks`` (word numbers ``(first, second, minimum, maximum)``) whose
+    channels put output word ``k`` on the word ``matched[k]``, the channel of every input word (None: the
+    identity) and the failure (None when it worked).
+
+    >>> from sortcheck.model import Sorts
+    >>> from sortcheck.model.lowering import lower_network
+    >>> from sortcheck.model.families import merge_exchange
+    >>> circuit = lower_network(merge_exchange(2), 1)
+    >>> network_from_blocks(circuit, Sorts(), [(0, 1, 2, 3)], [3, 2], Budget())[0].comparators
+    ((1, 0),)
+    """
     targets = dict(zip(matched, output_channels(circuit, prop)))
-    blocks = [block.words for block in search.blocks]
     channels_in = None
     channel = greedy_channels(circuit.words, blocks)
     if any(channel[word] != target for word, target in targets.items()):

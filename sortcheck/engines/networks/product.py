@@ -28,8 +28,8 @@ from typing import Iterator, Sequence
 
 import numpy as np
 
-from sortcheck.engines.bitslice import ALL_ONES, BLOCK_WORDS, LANES, failure_mask
-from sortcheck.engines.reduction import Group, ReducedSpace
+from sortcheck.engines.networks.bitslice import ALL_ONES, BLOCK_WORDS, LANES, failure_mask
+from sortcheck.engines.networks.reduction import Group, ReducedSpace
 from sortcheck.model import Property
 
 #: Most vectors in one tile (1024 words per channel row).
@@ -84,7 +84,7 @@ class Layout:
 
     Examples
     --------
-    >>> from sortcheck.engines.reduction import singleton_groups
+    >>> from sortcheck.engines.networks.reduction import singleton_groups
     >>> layout = Layout(ReducedSpace(18, tuple(singleton_groups(18)), (), {}, 2, True))
     >>> layout.tile_channels, layout.combinations, len(layout.tiles)
     (16, 4, 1)

@@ -5,14 +5,14 @@ what the 0-1 principle speaks about: a circuit sorts exactly when, for every
 threshold, ``[y_i >= v]`` is the 0-1 sort of ``[x_j >= v]``
 (``encodings/gate-threshold-conditions.md`` proves this and the condition of
 every other property).  :func:`threshold_question` encodes, in one
-:class:`~sortcheck.engines.gate_cnf.CnfBuilder`:
+:class:`~sortcheck.engines.gates.cnf.CnfBuilder`:
 
 * the circuit (Tseitin, structural hashing) on free input words;
 * ``v`` as ``w`` free bits (the *threshold word*), and the comparisons
-  ``[x_j >= v]``, ``[y_i >= v]`` with :func:`~sortcheck.engines.gate_cnf.less_than`
+  ``[x_j >= v]``, ``[y_i >= v]`` with :func:`~sortcheck.engines.gates.cnf.less_than`
   (two's complement for signed properties);
 * the 0-1 sort of ``[x_j >= v]`` by Batcher's merge exchange network on bits
-  (six clauses per comparator, :func:`~sortcheck.engines.network_cnf.comparator_clauses`);
+  (six clauses per comparator, :func:`~sortcheck.engines.networks.cnf.comparator_clauses`);
 * one *violation literal*: true exactly when, at this threshold, the two 0-1
   vectors the property relates differ.
 
@@ -41,8 +41,8 @@ from typing import Sequence
 
 from pysat.formula import IDPool
 
-from sortcheck.engines.gate_cnf import CnfBuilder, Clause, constant_word, encode_circuit, input_literals, less_than
-from sortcheck.engines.network_cnf import comparator_clauses
+from sortcheck.engines.gates.cnf import CnfBuilder, Clause, constant_word, encode_circuit, input_literals, less_than
+from sortcheck.engines.networks.cnf import comparator_clauses
 from sortcheck.model import GateCircuit, Median, Merges, PartialSort, Property, Selects, Sorts
 from sortcheck.model.families import merge_exchange
 from sortcheck.model.lowering import lower_network
@@ -240,7 +240,7 @@ def gate_violation_cnf(circuit: GateCircuit, prop: Property) -> tuple[list[Claus
 
     The threshold word is free (one question for every threshold at once).
     The comment lines carry no ``c`` prefix; pass them to
-    :func:`sortcheck.engines.network_cnf.dimacs`.
+    :func:`sortcheck.engines.networks.cnf.dimacs`.
 
     >>> from sortcheck.model import Sorts
     >>> from sortcheck.model.lowering import lower_network

@@ -1,4 +1,4 @@
-"""The ``sat`` engine's step through independent sorting sub-networks (see :mod:`sortcheck.engines.network_blocks`).
+"""The ``sat`` engine's step through independent sorting sub-networks (see :mod:`sortcheck.engines.networks.blocks`).
 
 Before a question goes to the SAT solver, the engine looks for sub-networks
 on disjoint channel sets at the start of its comparators.  Each is proved to
@@ -11,7 +11,7 @@ hand on, by enumeration.  When a sub-network is not proved to sort, or the
 vectors are too many, the step gives way to the solver.
 
 >>> from sortcheck.engines.base import Budget
->>> from sortcheck.engines.sat import SatEngine
+>>> from sortcheck.engines.networks.sat import SatEngine
 >>> from sortcheck.model import Sorts
 >>> from sortcheck.model.families import pairwise
 >>> verdict = SatEngine().check(pairwise(32), Sorts(), Budget())   # 3^16 vectors after the first layer
@@ -25,9 +25,9 @@ import math
 from dataclasses import dataclass, field
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.network_blocks import ReachableVectors, block_network, canonical, find_blocks
-from sortcheck.engines.network_split import SortedParts
-from sortcheck.engines.order import relations_prove_sorted
+from sortcheck.engines.networks.blocks import ReachableVectors, block_network, canonical, find_blocks
+from sortcheck.engines.networks.split import SortedParts
+from sortcheck.engines.networks.order import relations_prove_sorted
 from sortcheck.model import ComparatorNetwork, Sorts
 
 #: Sub-networks nested deeper than this inside one another are not looked for (each level has fewer channels).
