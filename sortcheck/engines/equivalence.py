@@ -42,7 +42,7 @@ import numpy as np
 from sortcheck.engines.base import Budget, Status
 from sortcheck.engines.gates.cnf import CnfBuilder, encode_circuit
 from sortcheck.engines.gates.simulation import block_words_for, compile_circuit, evaluate_rows, new_table
-from sortcheck.engines.gates.lifting.engine import lift_circuit
+from sortcheck.engines.gates.lifting.engine import lift
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.errors import UsageError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Sorts
@@ -151,7 +151,7 @@ def _lifted(first: GateCircuit, second: GateCircuit, signed: bool, budget: Budge
     for circuit in (first, second):
         if len(set(circuit.widths)) != 1 or budget.expired():
             return None
-        lifting = lift_circuit(circuit, Sorts(signed=signed), budget)
+        lifting = lift(circuit, Sorts(signed=signed), budget)
         if lifting.network is None or lifting.input_channels is not None or lifting.order.key_bits is not None:
             return None
         networks.append(lifting.network)

@@ -1,6 +1,6 @@
 """Gate circuits seen as the comparator networks they lift to: values on channels, traces, diagnoses.
 
-A circuit that lifts (:func:`sortcheck.engines.gates.lifting.engine.lift_circuit`) computes,
+A circuit that lifts (:func:`sortcheck.engines.gates.lifting.engine.lift`) computes,
 block by proved block, what its network computes on the words' order keys
 (the words themselves, their two's complement values, or their key bits).
 So an input of the circuit can be followed through the network: channel
@@ -26,7 +26,8 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.gates.lifting.engine import Lifting, lift_circuit, network_property
+from sortcheck.engines.gates.lifting.engine import lift
+from sortcheck.engines.gates.lifting.result import Lifting, network_property
 from sortcheck.errors import UsageError
 from sortcheck.explain.diagnose import Diagnosis, diagnose_network
 from sortcheck.explain.trace import Trace, trace_network
@@ -79,7 +80,7 @@ def lifted_view(circuit: GateCircuit, prop: Property, words: Sequence[int] | Non
     UsageError
         When the circuit does not lift to a comparator network, with the reason.
     """
-    lifting = lift_circuit(circuit, prop, budget)
+    lifting = lift(circuit, prop, budget)
     if lifting.network is None:
         raise UsageError(f"the circuit does not lift to a comparator network ({lifting.failure}), so it cannot be "
                          "shown as one", source)

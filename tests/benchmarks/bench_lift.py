@@ -7,7 +7,7 @@ Usage::
 For every case the circuit is ``lower_network(merge_exchange(n), w, style)``
 and the question is ``sorts``.  Columns:
 
-* ``lift``: seconds of :func:`sortcheck.engines.gates.lifting.engine.lift_circuit` (simulation
+* ``lift``: seconds of :func:`sortcheck.engines.gates.lifting.structural.lift_circuit` (simulation
   signatures, block search, one SAT proof per distinct block shape);
 * ``total``: seconds of ``LiftEngine().check`` (lifting, then the network by
   the comparator engines, ``auto``), and the verdict;
@@ -35,7 +35,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from sortcheck.engines.base import Budget  # noqa: E402
 from sortcheck.engines.gates.threshold.spec import miter_cnf, reference_sorter  # noqa: E402
-from sortcheck.engines.gates.lifting.engine import LiftEngine, lift_circuit  # noqa: E402
+from sortcheck.engines.gates.lifting.engine import LiftEngine  # noqa: E402
+from sortcheck.engines.gates.lifting.structural import lift_circuit  # noqa: E402
 from sortcheck.engines.solving import Interrupted, solve_within  # noqa: E402
 from sortcheck.model import Sorts  # noqa: E402
 from sortcheck.model.families import bitonic, merge_exchange  # noqa: E402

@@ -42,7 +42,7 @@ from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict
 from sortcheck.engines.gates.threshold.sat import MIN_SPLIT_GATES, GateSatEngine
 from sortcheck.engines.gates.simulation import SimulateEngine, quick_refute
 from sortcheck.engines.runners.isolation import check_in_child
-from sortcheck.engines.gates.lifting.engine import LiftEngine, lift_circuit, lifted_verdict
+from sortcheck.engines.gates.lifting.engine import LiftEngine, lift, lifted_verdict
 from sortcheck.engines.runners.pieces import Staged
 from sortcheck.model import GateCircuit, Netlist, Property
 
@@ -146,7 +146,7 @@ class GatePipeline:
 
     def _lifting(self, circuit: GateCircuit, prop: Property, budget: Budget, steps: list[str]) -> Verdict | None:
         started = time.perf_counter()
-        lifting = lift_circuit(circuit, prop, budget)
+        lifting = lift(circuit, prop, budget)
         if not lifting.lifted:
             steps.append(f"lifting stopped after {len(lifting.blocks)} proved min/max blocks: {lifting.failure} "
                          f"({time.perf_counter() - started:.2f} s)")
