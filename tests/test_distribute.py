@@ -283,6 +283,52 @@ def test_the_first_counterexample_cancels_running_dask_pieces(split_everything, 
     assert {first: status for first, status in ended.items() if first != 0} == dict.fromkeys(started - {0}, "unknown")
 
 
+CLIENT = """
+import sys
+sys.path.insert(0, {tests!r})
+from sortcheck.engines.base import Budget, Options
+from sortcheck.engines.networks import enumeration_pieces
+from sortcheck.engines.runners.distribute import DaskCluster, run_pieces
+from sortcheck.model import Sorts
+from sortcheck.model.families import build_family
+from test_distribute import UNREDUCED, RecordingPieces
+
+enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = 0.0, 1e-9, 2
+network = build_family("merge-exchange", 30)
+pieces = UNREDUCED.pieces(network, Sorts())
+with DaskCluster({address!r}) as runner:
+    run_pieces(RecordingPieces({folder!r}, pieces[1]["units"][0]), network, Sorts(), pieces, Budget(), Options(),
+               runner)
+"""
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGKILL"), reason="needs SIGKILL")
+def test_dask_pieces_stop_when_their_client_is_killed_and_the_workers_stay(dask_runner, tmp_path):
+    import subprocess
+    import sys
+
+    # a client process runs merge exchange 30 (it sorts) in 2 pieces of seconds each, one per worker
+    code = CLIENT.format(tests=str(Path(__file__).parent), address=dask_runner.address, folder=str(tmp_path))
+    client_process = subprocess.Popen([sys.executable, "-c", code])
+    engine = RecordingPieces(tmp_path, 0)
+    try:
+        for _ in range(1200):  # both pieces at work (at most 2 minutes)
+            if len(engine.outcomes()[0]) == 2 or client_process.poll() is not None:
+                break
+            time.sleep(0.1)
+    finally:
+        client_process.kill()  # SIGKILL: the client cannot cancel anything itself
+        client_process.wait()
+    assert len(engine.outcomes()[0]) == 2, "the pieces did not start"
+    for _ in range(1200):  # both pieces end (at most 2 minutes; one left to run takes seconds)
+        started, ended = engine.outcomes()
+        if started <= set(ended):
+            break
+        time.sleep(0.1)
+    assert ended == dict.fromkeys(started, "unknown")  # both stopped unfinished: the scheduler gave them up
+    assert len(dask_runner.client.scheduler_info()["workers"]) == 2  # the workers are not ours: they stay
+
+
 def test_cli_runs_pieces_on_local_processes_and_on_dask(split_everything, dask_address, tmp_path, capsys):
     from sortcheck.cli import main
 

@@ -140,10 +140,14 @@ def test_a_child_whose_parent_is_already_gone_ends_before_any_work():
 
 
 @LINUX
-def test_a_child_gets_sigkill_when_its_parent_dies():
-    # the parent starts a bound child that would sleep for a minute, prints its pid, and is killed
+@pytest.mark.parametrize("binding", ["parent-death signal", "polling the parent"])
+def test_a_child_ends_when_its_parent_dies(binding):
+    # the parent starts a bound child that would sleep for a minute, prints its pid, and is killed;
+    # "polling the parent" is what a child does where there is no parent-death signal
+    fallback = "processes._parent_death_signal = lambda number: False\n" if binding == "polling the parent" else ""
     code = ("import os, signal, time\n"
             "from sortcheck.engines.runners import processes\n"
+            f"{fallback}"
             "child = processes.start(time.sleep, 60)\n"
             "print(child.pid, flush=True)\n"
             "os.kill(os.getpid(), signal.SIGKILL)")
