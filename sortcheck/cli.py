@@ -7,15 +7,19 @@ status (0 proved, 1 refuted, 2 error, 3 unknown).
 from __future__ import annotations
 
 import argparse
+import atexit
+import os
 import sys
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import replace
 from pathlib import Path
 from typing import Sequence, TextIO
 
 from sortcheck import __version__
 from sortcheck.engines import ENGINE_NAMES, Budget, Options, redundant_comparators
+from sortcheck.engines.base import interruption, interrupted_words
 from sortcheck.engines.runners.distribute import InProcess, default_jobs, make_runner
+from sortcheck.engines.runners.interrupts import catching_signals
+from sortcheck.engines.runners.processes import ending_children, run_calls
 from sortcheck.engines.equivalence import equivalent
 from sortcheck.errors import SortcheckError, UsageError
 from sortcheck.explain import diagnose_network
@@ -23,7 +27,7 @@ from sortcheck.explain.draw import draw_network, parse_input_values
 from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
-from sortcheck.load import dump_netlist, parse_property, read_netlist, write_netlist
+from sortcheck.load import dump_netlist, parse_property, read_netlist
 from sortcheck.load.config import CheckRequest, expand, read_project_config
 
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, check_fits
@@ -35,6 +39,7 @@ from sortcheck.report import (
     EXIT_ERROR, EXIT_PROVED, FileResult, check_file, check_report, dumps, exit_status, format_text, kind_of,
     stats_report, summarise,
 )
+from sortcheck.report.results import interrupted_result
 from sortcheck.report.equivalence_report import equivalence_exit, equivalence_json, format_equivalence
 from sortcheck.report.certify import certify_file_result
 from sortcheck.report.export import FORMATS as EXPORT_FORMATS, export_text
@@ -175,6 +180,7 @@ def build_parser() -> argparse.ArgumentParser:
                              "of first changes (default: the number of cores)")
     repair.add_argument("--cluster", metavar="ADDRESS",
                         help="run that search's pieces on a Dask scheduler (tcp://host:8786)")
+    repair.add_argument("--quiet", action="store_true", help="no progress display on standard error")
     repair.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
     repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
 
@@ -191,9 +197,16 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _write(path: str, text: str) -> None:
+    """Write ``text`` to ``path`` whole or not at all: a file beside it, renamed over it when complete."""
+    target = Path(path)
+    partial = target.with_name(f".{target.name}.{os.getpid()}.partial")
     try:
-        Path(path).write_text(text, encoding="utf-8")
+        descriptor = os.open(partial, os.O_WRONLY | os.O_CREAT | os.O_TRUNC, 0o666)
+        with open(descriptor, "w", encoding="utf-8") as stream:
+            stream.write(text)
+        os.replace(partial, target)
     except OSError as error:
+        partial.unlink(missing_ok=True)
         raise UsageError(f"cannot write: {error.strerror or error}", path) from None
 
 
@@ -229,28 +242,73 @@ def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=
     result = check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
                         minimize, request.words, runner)
     if certify is not None:
-        result = certify_file_result(result, certify, request.words, request.width)
+        if interruption.requested():
+            result = replace(result, certification={"certified": False, "certificate": {
+                "method": "none", "files": [], "checked_by": [],
+                "scope": "not certified: the run was interrupted before the certificate was checked"}})
+        else:
+            result = certify_file_result(result, certify, request.words, request.width)
     return result
+
+
+def _check_request_in_worker(*arguments) -> FileResult:
+    """:func:`_check_request` in a worker process, which catches SIGINT and SIGTERM as its parent does."""
+    with catching_signals():
+        return _check_request(*arguments)
+
+
+#: Seconds the workers checking a file each get to report what they covered when the run is interrupted.
+REPORT_GRACE = 1.5
+
+
+def _check_on_workers(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
+    """Check the files ``--jobs`` at a time, one a worker process; an interruption reaches the workers too."""
+    workers = min(args.jobs, len(requests))
+    where = InProcess(f"one of {workers} local processes checking a file each", splits=False)
+    calls = [(_check_request_in_worker, (request, args.count, not args.no_minimize, None, args.certify, where))
+             for request in requests]
+    progress = progress_line(stderr, f"{len(requests)} files", args.quiet)
+
+    def waiting(running: list[int], finished: int) -> None:
+        if progress is not None:
+            progress(finished, len(requests), "checking " + ", ".join(requests[number].path for number in running))
+
+    try:
+        answers = run_calls(calls, workers, interruption.requested, waiting, grace=REPORT_GRACE)
+    finally:
+        if progress is not None:
+            progress.clear()
+    results = []
+    for request, answer in zip(requests, answers):
+        if answer is None or answer[0] == "unfinished":
+            results.append(interrupted_result(request.path, request.prop, started=answer is not None))
+        elif answer[0] == "error":
+            detail = answer[1].strip().splitlines()[-1]
+            results.append(FileResult(request.path, error=SortcheckError(f"internal error (please report): {detail}",
+                                                                           request.path)))
+        else:
+            results.append(answer[1])
+    return results
 
 
 def _check_all(requests: list[CheckRequest], args: argparse.Namespace, stderr: TextIO) -> list[FileResult]:
     if args.jobs is None:
         args.jobs = default_jobs()
     if args.jobs > 1 and len(requests) > 1 and not args.cluster:
-        workers = min(args.jobs, len(requests))
-        where = InProcess(f"one of {workers} local processes checking a file each", splits=False)
-        with ProcessPoolExecutor(max_workers=workers) as pool:
-            return list(pool.map(_check_request, requests, [args.count] * len(requests),
-                                 [not args.no_minimize] * len(requests), [None] * len(requests),
-                                 [args.certify] * len(requests), [where] * len(requests)))
+        return _check_on_workers(requests, args, stderr)
     results = []
     with make_runner(args.jobs, args.cluster) as runner:
         for request in requests:
+            if interruption.requested():
+                results.append(interrupted_result(request.path, request.prop, started=False))
+                continue
             progress = progress_line(stderr, request.path, args.quiet)
-            results.append(_check_request(request, args.count, not args.no_minimize, progress, args.certify,
-                                          runner))
-            if progress is not None:
-                progress.clear()
+            try:
+                results.append(_check_request(request, args.count, not args.no_minimize, progress, args.certify,
+                                              runner))
+            finally:
+                if progress is not None:
+                    progress.clear()
     return results
 
 
@@ -388,14 +446,23 @@ def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     prop = parse_property(args.property) if args.property else None
     if prop is not None:
         check_fits(prop, network, args.path, where="--property")
-    if isinstance(network, GateCircuit):
-        text = Path(args.path).read_text(encoding="utf-8") if args.path.endswith(".json") else None
-        outcome = repair_circuit(network, prop, Budget.of(args.timeout), text=text)
-    else:
-        with make_runner(args.jobs, args.cluster) as runner:
-            outcome = repair_network(network, prop, Budget.of(args.timeout), runner=runner)
+    progress = progress_line(stderr, args.path, args.quiet)
+    budget = Budget.of(args.timeout, progress)
+    try:
+        if isinstance(network, GateCircuit):
+            text = Path(args.path).read_text(encoding="utf-8") if args.path.endswith(".json") else None
+            outcome = repair_circuit(network, prop, budget, text=text)
+        else:
+            with make_runner(args.jobs, args.cluster) as runner:
+                outcome = repair_network(network, prop, budget, runner=runner)
+    finally:
+        if progress is not None:
+            progress.clear()
+    if interruption.requested() and outcome.status in ("budget", "unknown"):
+        outcome = replace(outcome, status="interrupted",
+                          reason=f"interrupted by {interruption.signal}: {interrupted_words(outcome.reason)}")
     if outcome.network is not None and args.output and outcome.status == "repaired":
-        write_netlist(outcome.network, args.output)
+        _write(args.output, dump_netlist(outcome.network))
     report = {"sortcheck_report": 1, "results": [{"path": args.path, "kind": kind_of(network),
                                                   "property": (prop or network.claim or DEFAULT_PROPERTY).to_json(),
                                                   "repair": outcome.to_json()}]}
@@ -406,6 +473,8 @@ def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 def run_equiv(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     first, second = (read_netlist(path, args.words, args.width) for path in args.paths)
     answer = equivalent(first, second, Budget.of(args.timeout), signed=args.signed, sources=args.paths)
+    if interruption.requested() and answer.status.value == "unknown":
+        answer = replace(answer, scope=f"interrupted by {interruption.signal}: {interrupted_words(answer.scope)}")
     if args.format == "json":
         stdout.write(dumps(equivalence_json(*args.paths, answer)))
     else:
@@ -430,8 +499,8 @@ COMMANDS = {"check": run_check, "stats": run_stats, "build": run_build, "draw": 
             "equiv": run_equiv, "export": run_export}
 
 #: Exit status of ``repair`` by outcome: a verified repair (or nothing to repair) 0, none within the
-#: search 1, budget or undecided 3.
-REPAIR_EXIT = {"repaired": 0, "holds": 0, "none": 1, "budget": 3, "unknown": 3}
+#: search 1, budget, undecided or interrupted 3.
+REPAIR_EXIT = {"repaired": 0, "holds": 0, "none": 1, "budget": 3, "unknown": 3, "interrupted": 3}
 
 
 def main(argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr: TextIO | None = None) -> int:
@@ -444,7 +513,8 @@ def main(argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr
         if args.command is None:
             parser.print_help(stderr)
             return EXIT_ERROR
-        return COMMANDS[args.command](args, stdout, stderr)
+        with catching_signals(), ending_children():  # no child process outlives the command
+            return COMMANDS[args.command](args, stdout, stderr)
     except SystemExit as exit_request:  # --help and --version
         return int(exit_request.code or 0)
     except SortcheckError as error:
@@ -456,5 +526,18 @@ def main(argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr
 
 
 def run() -> None:
-    """Entry point of the ``sortcheck`` console script."""
-    sys.exit(main())
+    """Entry point of the ``sortcheck`` console script.
+
+    After the command, the exit handlers run and the output is flushed, and
+    then the process ends without tearing down its objects one by one: after
+    a large repair search that teardown alone took 2.6 s, which made an
+    interrupted run end late (and every other run too).
+    """
+    status = main()
+    atexit._run_exitfuncs()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):  # closed, or a broken pipe
+            pass
+    os._exit(status)

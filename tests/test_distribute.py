@@ -21,6 +21,7 @@ import random
 import signal
 import threading
 import time
+from pathlib import Path
 
 import pytest
 
@@ -170,26 +171,60 @@ def test_every_property_splits_to_the_same_result(split_everything, prop, seed):
             assert breaks(prop, example, run(network.comparators, example))  # tests/reference.py
 
 
-def cancellation_case(split_everything):
-    """The one-hot breaker on 30 channels in 64 pieces, and the seconds one late (proved) piece takes."""
-    split_everything(64)
+class RecordingPieces:
+    """The unreduced enumerate engine, whose pieces leave files in ``folder`` saying that they started and how
+    they ended (pieces run in other processes, so files are what the test can read back).
+
+    Only the piece that begins at unit 0 checks the network it is given (the one-hot breaker: its
+    counterexample ``1 0 ... 0`` is the first vector of that piece); the others check merge exchange, which
+    sorts, on the same channels, so they have seconds of work and no counterexample (the one-hot breaker has
+    failing inputs in other pieces too).  The first piece starts its work only once the piece that begins at
+    unit ``waits_for`` has started, so that piece is at work when the counterexample ends the check, whatever
+    the scheduling.
+    """
+
+    name = "enumerate"
+    cooperative = True
+
+    def __init__(self, folder, waits_for: int):
+        self.folder, self.waits_for = str(folder), waits_for
+
+    def check_piece(self, netlist, prop, piece, budget, options=Options()):
+        folder, first = Path(self.folder), piece["units"][0]
+        (folder / f"started-{first}").touch()
+        waited = 0
+        while first == 0 and not (folder / f"started-{self.waits_for}").exists() and waited < 3000:
+            time.sleep(0.01)  # at most 30 s, should no other worker take a piece
+            waited += 1
+        checked = netlist if first == 0 else build_family("merge-exchange", netlist.channels)
+        verdict = UNREDUCED.check_piece(checked, prop, piece, budget, options)
+        (folder / f"ended-{first}").write_text(verdict.status.value)
+        return verdict
+
+    def outcomes(self) -> tuple[set[int], dict[int, str]]:
+        """The first units of the pieces that started, and how those that ended ended."""
+        folder = Path(self.folder)
+        started = {int(path.name.split("-")[1]) for path in folder.glob("started-*")}
+        return started, {int(path.name.split("-")[1]): path.read_text() for path in folder.glob("ended-*")}
+
+
+def cancellation_case(split_everything, folder):
+    """The one-hot breaker on 30 channels in 4 pieces (seconds of work each), and the recording engine."""
+    split_everything(4)
     network = one_hot_breaker(30)
     pieces = UNREDUCED.pieces(network, Sorts())
-    started = time.perf_counter()
-    late = UNREDUCED.check_piece(network, Sorts(), pieces[-1], Budget(), Options())
-    assert late.status == Status.PROVED
-    return network, pieces, time.perf_counter() - started
+    assert len(pieces) == 4 and pieces[0]["units"][0] == 0
+    return network, pieces, RecordingPieces(folder, waits_for=pieces[1]["units"][0])
 
 
-def test_the_first_counterexample_cancels_the_other_local_pieces(split_everything):
-    network, pieces, piece_seconds = cancellation_case(split_everything)
-    would_take = piece_seconds * len(pieces) / 2  # every piece on two processes
-    started = time.perf_counter()
+def test_the_first_counterexample_cancels_the_other_local_pieces(split_everything, tmp_path):
+    network, pieces, engine = cancellation_case(split_everything, tmp_path)
     with LocalProcesses(2) as runner:
-        verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), runner)
-    elapsed = time.perf_counter() - started
+        verdict = run_pieces(engine, network, Sorts(), pieces, Budget(), Options(), runner)
     assert verdict.status == Status.REFUTED and verdict.counterexample.input == (1,) + (0,) * 29
-    assert elapsed < would_take / 4, (elapsed, would_take)
+    started, ended = engine.outcomes()
+    assert pieces[1]["units"][0] in started  # the second piece was at work when the counterexample came ...
+    assert ended == {0: "refuted"}  # ... and its process was ended: no piece after the first ran to its end
 
 
 def test_a_killed_local_worker_is_replaced_and_the_check_completes(split_everything):
@@ -227,20 +262,71 @@ def test_dask_gives_the_single_process_result(split_everything, dask_runner, net
     assert verdict.figures["ran_on"].startswith("dask tcp://127.0.0.1:")
 
 
-def test_the_first_counterexample_cancels_running_dask_pieces(split_everything, dask_runner):
-    network, pieces, piece_seconds = cancellation_case(split_everything)
-    would_take = piece_seconds * len(pieces) / 2
-    started = time.perf_counter()
-    verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(), dask_runner)
-    elapsed = time.perf_counter() - started
+def test_the_first_counterexample_cancels_running_dask_pieces(split_everything, dask_runner, tmp_path):
+    network, pieces, engine = cancellation_case(split_everything, tmp_path)
+    verdict = run_pieces(engine, network, Sorts(), pieces, Budget(), Options(), dask_runner)
     assert verdict.status == Status.REFUTED and verdict.counterexample.input == (1,) + (0,) * 29
-    assert elapsed < would_take / 4, (elapsed, would_take)
     # the workers are free again soon: the running pieces polled the stop variable
     client = dask_runner.client
     deadline = time.monotonic() + 10
     while any(client.processing().values()) and time.monotonic() < deadline:
         time.sleep(0.05)
     assert not any(client.processing().values())
+    for _ in range(1200):  # every piece that started ends (at most 2 minutes: a piece left to run takes seconds)
+        started, ended = engine.outcomes()
+        if started <= set(ended):
+            break
+        time.sleep(0.1)
+    assert pieces[1]["units"][0] in started  # the second piece was at work when the counterexample came
+    assert ended[0] == "refuted"
+    # no piece after the first ran to its end: those at work saw the stop variable and stopped, unfinished
+    assert {first: status for first, status in ended.items() if first != 0} == dict.fromkeys(started - {0}, "unknown")
+
+
+CLIENT = """
+import sys
+sys.path.insert(0, {tests!r})
+from sortcheck.engines.base import Budget, Options
+from sortcheck.engines.networks import enumeration_pieces
+from sortcheck.engines.runners.distribute import DaskCluster, run_pieces
+from sortcheck.model import Sorts
+from sortcheck.model.families import build_family
+from test_distribute import UNREDUCED, RecordingPieces
+
+enumeration_pieces.SPLIT_SECONDS, enumeration_pieces.PIECE_SECONDS, enumeration_pieces.MAX_PIECES = 0.0, 1e-9, 2
+network = build_family("merge-exchange", 30)
+pieces = UNREDUCED.pieces(network, Sorts())
+with DaskCluster({address!r}) as runner:
+    run_pieces(RecordingPieces({folder!r}, pieces[1]["units"][0]), network, Sorts(), pieces, Budget(), Options(),
+               runner)
+"""
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGKILL"), reason="needs SIGKILL")
+def test_dask_pieces_stop_when_their_client_is_killed_and_the_workers_stay(dask_runner, tmp_path):
+    import subprocess
+    import sys
+
+    # a client process runs merge exchange 30 (it sorts) in 2 pieces of seconds each, one per worker
+    code = CLIENT.format(tests=str(Path(__file__).parent), address=dask_runner.address, folder=str(tmp_path))
+    client_process = subprocess.Popen([sys.executable, "-c", code])
+    engine = RecordingPieces(tmp_path, 0)
+    try:
+        for _ in range(1200):  # both pieces at work (at most 2 minutes)
+            if len(engine.outcomes()[0]) == 2 or client_process.poll() is not None:
+                break
+            time.sleep(0.1)
+    finally:
+        client_process.kill()  # SIGKILL: the client cannot cancel anything itself
+        client_process.wait()
+    assert len(engine.outcomes()[0]) == 2, "the pieces did not start"
+    for _ in range(1200):  # both pieces end (at most 2 minutes; one left to run takes seconds)
+        started, ended = engine.outcomes()
+        if started <= set(ended):
+            break
+        time.sleep(0.1)
+    assert ended == dict.fromkeys(started, "unknown")  # both stopped unfinished: the scheduler gave them up
+    assert len(dask_runner.client.scheduler_info()["workers"]) == 2  # the workers are not ours: they stay
 
 
 def test_cli_runs_pieces_on_local_processes_and_on_dask(split_everything, dask_address, tmp_path, capsys):

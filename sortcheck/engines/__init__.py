@@ -17,7 +17,7 @@ from sortcheck.engines.gates.threshold.sat import GateSatEngine
 from sortcheck.engines.gates.simulation import SimulateEngine
 from sortcheck.engines.gates.lifting.engine import LiftEngine
 from sortcheck.engines.smt import SmtEngine
-from sortcheck.engines.runners.isolation import check_in_child
+from sortcheck.engines.runners.isolation import check_in_child, needs_child
 from sortcheck.engines.networks.redundancy import redundant_comparators as redundant_comparators_by_sat
 from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.engines.sat_routing import RoutedSatEngine
@@ -127,11 +127,10 @@ def check(netlist: Netlist, prop: Property | None = None, engine: str = "auto",
                            time.perf_counter() - started, engine_reason=reason)
     else:
         chosen, reason = get_engine(engine), f"requested with --engine {engine}"
-    isolated = not chosen.cooperative or getattr(chosen, "isolate", False)
-    if budget.deadline is None or not isolated:
-        verdict = chosen.check(netlist, prop, budget, options)
-    else:
+    if needs_child(chosen, budget):
         verdict = check_in_child(chosen, netlist, prop, budget, options)
+    else:
+        verdict = chosen.check(netlist, prop, budget, options)
     return verdict.with_choice(verdict.engine_reason or reason, time.perf_counter() - started)
 
 

@@ -8,6 +8,7 @@ return a :class:`Verdict` whose status is ``unknown`` and whose
 from __future__ import annotations
 
 import enum
+import threading
 import time
 from dataclasses import dataclass, field
 from typing import Any, Callable, Protocol
@@ -31,6 +32,7 @@ class StopReason(enum.Enum):
     TIMEOUT = "timeout"
     SIZE_LIMIT = "size-limit"
     UNSUPPORTED = "unsupported"
+    INTERRUPTED = "interrupted"
 
     def describe(self) -> str:
         """A short phrase for people.
@@ -44,7 +46,95 @@ class StopReason(enum.Enum):
             StopReason.TIMEOUT: "the time budget ran out",
             StopReason.SIZE_LIMIT: "the netlist is beyond this engine's size limit",
             StopReason.UNSUPPORTED: "this engine does not handle this netlist or property",
+            StopReason.INTERRUPTED: "the run was interrupted (SIGINT or SIGTERM) before the check finished",
         }[self]
+
+
+class Interruption:
+    """A request, for the whole process, that every budget expire now: how SIGINT and SIGTERM end a check.
+
+    :meth:`Budget.expired` turns true once :meth:`request` was called, so
+    every engine, piece runner and explanation stops at its next look at its
+    budget and returns what it covered.  Blocking steps that cannot look (a
+    SAT call) register a callable with :meth:`calling` that makes them
+    return (``solver.interrupt``).  :mod:`sortcheck.engines.runners.interrupts`
+    requests it when a signal arrives; nothing else in the package does.
+
+    >>> stop = Interruption()
+    >>> calls = []
+    >>> with stop.calling(lambda: calls.append("interrupt")):
+    ...     stop.request("SIGTERM")
+    >>> stop.requested(), stop.signal, calls
+    (True, 'SIGTERM', ['interrupt'])
+    >>> stop.clear(); stop.requested()
+    False
+    """
+
+    def __init__(self):
+        self._event = threading.Event()
+        self._lock = threading.Lock()
+        self._callbacks: list[Callable[[], Any]] = []
+        self.signal: str | None = None
+        #: True while signals are caught (a process that can be interrupted isolates engines that cannot stop).
+        self.watched = False
+
+    def requested(self) -> bool:
+        return self._event.is_set()
+
+    def request(self, signal: str) -> None:
+        """Ask every budget to expire, and call the registered interrupt callables (from any thread)."""
+        with self._lock:
+            if self.signal is None:
+                self.signal = signal
+            self._event.set()
+            callbacks = list(self._callbacks)
+        for callback in callbacks:
+            callback()
+
+    def clear(self) -> None:
+        with self._lock:
+            self._event.clear()
+            self.signal = None
+
+    def calling(self, callback: Callable[[], Any]) -> "_Registration":
+        """A context in which ``callback`` is called when an interruption is requested (at once if it already was)."""
+        return _Registration(self, callback)
+
+
+class _Registration:
+    def __init__(self, owner: Interruption, callback: Callable[[], Any]):
+        self.owner, self.callback = owner, callback
+
+    def __enter__(self) -> None:
+        with self.owner._lock:
+            self.owner._callbacks.append(self.callback)
+        if self.owner.requested():
+            self.callback()
+
+    def __exit__(self, *exc) -> None:
+        with self.owner._lock:
+            self.owner._callbacks.remove(self.callback)
+
+
+#: The interruption of this process (see :class:`Interruption`).
+interruption = Interruption()
+
+#: How a verdict that stopped because its budget expired reads once the run was interrupted (see :func:`interrupted`).
+_INTERRUPTED_WORDS = (("before the time budget ran out", "before the run was interrupted"),
+                      ("when the time budget ran out", "when the run was interrupted"),
+                      ("the time budget ran out", "the run was interrupted"),
+                      ("within the time budget", "before the run was interrupted"))
+
+
+def interrupted_words(text: str) -> str:
+    """``text`` (about a budget that ran out) reworded for a run that was interrupted.
+
+    >>> interrupted_words("1,024 of 4,096 vectors were checked before the time budget ran out; nothing is proved")
+    '1,024 of 4,096 vectors were checked before the run was interrupted; nothing is proved'
+    """
+    for budget_words, interrupt_words in _INTERRUPTED_WORDS:
+        text = text.replace(budget_words, interrupt_words)
+    return text
 
 
 @dataclass(frozen=True)
@@ -162,6 +252,34 @@ class Verdict:
         return Verdict(self.status, self.engine, self.prop, self.stop, self.scope, seconds, self.counterexample,
                        self.figures, reason, self.certificate)
 
+    def interrupted(self, signal: str | None) -> "Verdict":
+        """This verdict as the verdict of a run interrupted by ``signal``.
+
+        An unknown verdict whose budget expired (stop reason timeout: the
+        interruption acts through budgets) becomes ``interrupted``, its scope
+        (and the reason for its engine) reworded and still saying what was
+        covered; any other verdict (proved or refuted before the signal, or
+        unknown for another reason) stays.
+
+        >>> from sortcheck.model import Sorts
+        >>> stopped = Verdict(Status.UNKNOWN, "enumerate", Sorts(), StopReason.TIMEOUT,
+        ...                   "2 of 8 vectors were checked before the time budget ran out; nothing is proved")
+        >>> verdict = stopped.interrupted("SIGINT")
+        >>> verdict.stop.value, verdict.figures
+        ('interrupted', {'interrupted_by': 'SIGINT'})
+        >>> print(verdict.scope)
+        interrupted by SIGINT: 2 of 8 vectors were checked before the run was interrupted; nothing is proved
+        """
+        if self.status is not Status.UNKNOWN or self.stop is not StopReason.TIMEOUT:
+            return self
+        scope = interrupted_words(self.scope)
+        if "nothing is proved" not in scope:
+            scope += "; nothing is proved"
+        reason = None if self.engine_reason is None else interrupted_words(self.engine_reason)
+        return Verdict(self.status, self.engine, self.prop, StopReason.INTERRUPTED,
+                       f"interrupted by {signal or 'a signal'}: {scope}", self.seconds, None,
+                       {**self.figures, "interrupted_by": signal}, reason, self.certificate)
+
 
 #: A progress callback: (units done, units in all or None, phase) -> None.
 Progress = Callable[[float, "float | None", str], None]
@@ -199,6 +317,9 @@ class Budget:
         return cls(None if timeout is None else time.monotonic() + timeout, progress, stopped)
 
     def expired(self) -> bool:
+        """Whether to stop: the deadline passed, the stop condition holds, or the run was interrupted."""
+        if interruption.requested():
+            return True
         if self.deadline is not None and time.monotonic() >= self.deadline:
             return True
         return self.stopped is not None and bool(self.stopped())

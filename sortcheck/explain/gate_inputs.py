@@ -11,13 +11,13 @@ ones the circuit gets wrong, evaluating 64 inputs per machine word with the
 from __future__ import annotations
 
 import random
-import threading
 from typing import Sequence
 
 import numpy as np
 from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget
+from sortcheck.engines.solving import solve_interruptibly
 
 from sortcheck.engines.gates.simulation import compile_circuit, evaluate_rows, new_table
 from sortcheck.engines.gates.word_blocks import ints_to_limbs, limbs_to_keys, limbs_to_rows, rows_to_limbs
@@ -130,15 +130,6 @@ def solve_in_budget(solver: Solver, assumptions: Sequence[int], budget: Budget) 
     (False, True)
     """
     remaining = budget.remaining()
-    if remaining is None:
-        return solver.solve(assumptions=list(assumptions))
-    if remaining <= 0:
+    if remaining is not None and remaining <= 0 or budget.expired():
         return None
-    timer = threading.Timer(remaining, solver.interrupt)
-    timer.start()
-    try:
-        answer = solver.solve_limited(assumptions=list(assumptions), expect_interrupt=True)
-    finally:
-        timer.cancel()
-        solver.clear_interrupt()
-    return answer
+    return solve_interruptibly(solver, assumptions, remaining)

@@ -59,8 +59,9 @@ from sortcheck.explain.repair_search import CandidateSearch
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, Property, Sorts, check_fits
 
 #: Outcome statuses: a proved repair; the property already holds; no repair
-#: within the search; the budget ran out; no engine could decide the property.
-STATUSES = ("repaired", "holds", "none", "budget", "unknown")
+#: within the search; the budget ran out; no engine could decide the property;
+#: the run was interrupted (set by the command line, which knows of signals).
+STATUSES = ("repaired", "holds", "none", "budget", "unknown", "interrupted")
 
 
 @dataclass(frozen=True)

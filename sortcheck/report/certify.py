@@ -41,6 +41,7 @@ from typing import Any
 
 from sortcheck.engines.base import CertificateMaterial, Status, Verdict
 from sortcheck.engines.networks.certificates import canonical, claim_digest, network_digest
+from sortcheck.engines.runners.processes import run_program
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
 from sortcheck.model.semantics import violation
@@ -98,8 +99,7 @@ def run_drat_trim(cnf: Path, proof: Path, program: str | None = None) -> dict[st
     if program is None:
         return None
     try:
-        done = subprocess.run([program, str(cnf), str(proof)], capture_output=True, text=True,
-                              timeout=DRAT_TRIM_SECONDS)
+        done = run_program([program, str(cnf), str(proof)], DRAT_TRIM_SECONDS)
     except (OSError, subprocess.TimeoutExpired) as error:
         return {"accepted": False, "output": f"drat-trim did not finish: {error}"}
     lines = [line for line in done.stdout.splitlines() if line.startswith("s ")]

@@ -11,7 +11,8 @@ import traceback
 from dataclasses import dataclass, replace
 from typing import Any, Iterable
 
-from sortcheck.engines import Budget, Options, Progress, Verdict, check
+from sortcheck.engines import Budget, Options, Progress, Status, StopReason, Verdict, check
+from sortcheck.engines.base import interruption
 from sortcheck.engines.runners.distribute import check_split
 from sortcheck.errors import SortcheckError
 from sortcheck.explain import (
@@ -163,6 +164,8 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
         else:
             verdict = check_split(netlist, chosen, engine, timeout, path, options, progress, runner)
         verdict, diagnosis, trace = explain_refutation(netlist, verdict, minimize, timeout)
+        if interruption.requested():
+            verdict = verdict.interrupted(interruption.signal)
     except SortcheckError as error:
         return _error_result(path, netlist, chosen, error, started)
     except Exception as error:  # an internal bug: report it as an error result and go on
@@ -171,6 +174,23 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
                              started)
     return FileResult(path, kind_of(netlist), chosen, verdict, None, netlist.stats(), time.perf_counter() - started,
                       diagnosis, trace)
+
+
+def interrupted_result(path: str, prop: Property | None, started: bool) -> FileResult:
+    """The result of a file whose check the interruption of the run kept from finishing (or from starting).
+
+    >>> result = interrupted_result("a.json", None, started=False)
+    >>> result.status, result.verdict.stop.value
+    ('unknown', 'interrupted')
+    >>> result.verdict.scope
+    'interrupted by a signal before this file was checked; nothing is proved'
+    """
+    signal = interruption.signal or "a signal"
+    when = "before this file's check had finished" if started else "before this file was checked"
+    verdict = Verdict(Status.UNKNOWN, "none", prop, StopReason.INTERRUPTED,
+                      f"interrupted by {signal} {when}; nothing is proved", 0.0, None,
+                      {"interrupted_by": interruption.signal})
+    return FileResult(path, None, prop, verdict)
 
 
 def _error_result(path: str, netlist: Netlist | None, prop: Property | None, error: SortcheckError,

@@ -130,6 +130,18 @@ def _message(result: FileResult) -> str:
             f"{list(example.output)}; {example.violation}")
 
 
+def _invocation(results: Sequence[FileResult]) -> dict:
+    """The run's invocation: successful, unless a signal interrupted it (then named, as SARIF allows)."""
+    signals = [result.verdict.figures.get("interrupted_by") for result in results
+               if result.verdict is not None and result.verdict.stop.value == "interrupted"]
+    if not signals:
+        return {"executionSuccessful": True}
+    invocation = {"executionSuccessful": False}
+    if signals[0]:
+        invocation["exitSignalName"] = signals[0]
+    return invocation
+
+
 def sarif_report(results: Sequence[FileResult]) -> str:
     """The SARIF 2.1.0 log for ``results``: a result per refuted or invalid file."""
     rule_index = {rule: index for index, rule in enumerate(RULE_IDS)}
@@ -143,6 +155,6 @@ def sarif_report(results: Sequence[FileResult]) -> str:
     log = {"$schema": SARIF_SCHEMA, "version": "2.1.0", "runs": [{
         "tool": {"driver": {"name": "sortcheck", "version": __version__, "rules": _rules()}},
         "results": findings,
-        "invocations": [{"executionSuccessful": True}],
+        "invocations": [_invocation(results)],
     }]}
     return json.dumps(log, indent=2) + "\n"

@@ -74,7 +74,8 @@ def format_result(result: FileResult) -> list[str]:
         return [f"{'ERROR':<8} {result.error}"]
     verdict = result.verdict
     lines = [f"{result.status.upper():<8} {result.path}",
-             f"{INDENT}{verdict.prop.describe()}  [{describe_netlist(result.stats, result.kind)}]"]
+             f"{INDENT}{verdict.prop.describe()}  [{describe_netlist(result.stats, result.kind)}]" if verdict.prop
+             else f"{INDENT}not read"]
     example = verdict.counterexample
     if example is not None:
         width = max(len(str(v)) for v in (*example.input, *example.output))
@@ -149,7 +150,7 @@ TEXT_SUSPECTS = 5
 def format_repair(path: str, outcome, written: str | None) -> str:
     """The text report of ``sortcheck repair``."""
     headline = {"repaired": "REPAIRED", "holds": "HOLDS", "none": "NO REPAIR", "budget": "UNKNOWN",
-                "unknown": "UNKNOWN"}[outcome.status]
+                "unknown": "UNKNOWN", "interrupted": "UNKNOWN"}[outcome.status]
     lines = [f"{headline:<9} {path}"]
     noun = "circuit" if hasattr(outcome, "suspects") else "network"
     for change in outcome.changes:

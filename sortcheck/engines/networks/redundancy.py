@@ -17,13 +17,12 @@ see swapping, and each comparator proved redundant adds the clause
 
 from __future__ import annotations
 
-import threading
-
 import numpy as np
 from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget
 from sortcheck.engines.networks.cnf import encode_network
+from sortcheck.engines.solving import solve_interruptibly
 from sortcheck.model import ComparatorNetwork
 
 #: An interruptible python-sat solver, so the budget's deadline holds.
@@ -72,17 +71,9 @@ def redundant_comparators(network: ComparatorNetwork, budget: Budget, solver: st
             if index in seen:
                 continue
             remaining = budget.remaining()
-            if remaining is not None and remaining <= 0:
+            if remaining is not None and remaining <= 0 or budget.expired():
                 return None
-            timer = threading.Timer(remaining, sat.interrupt) if remaining is not None else None
-            if timer:
-                timer.start()
-            try:
-                answer = sat.solve_limited(assumptions=[before_low, -before_high], expect_interrupt=True)
-            finally:
-                if timer:
-                    timer.cancel()
-                    sat.clear_interrupt()
+            answer = solve_interruptibly(sat, [before_low, -before_high], remaining)
             if answer is None:
                 return None
             if answer is False:

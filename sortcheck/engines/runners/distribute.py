@@ -10,15 +10,20 @@ so pieces before it always finish and pieces after it are cancelled.
 
 * :class:`InProcess` runs the pieces one after another here.
 * :class:`LocalProcesses` runs them on worker processes it starts and ends
-  itself: a piece that is no longer needed (a counterexample came from an
-  earlier piece, or the deadline passed) is stopped by ending its process,
-  which also stops a solver stuck in native code.
+  itself (through :mod:`sortcheck.engines.runners.processes`: they never
+  outlive this process): a piece that is no longer needed (a counterexample
+  came from an earlier piece, the deadline passed, or the run was
+  interrupted) is stopped by ending its process, which also stops a solver
+  stuck in native code.
 * :class:`DaskCluster` submits them to a ``dask.distributed`` scheduler,
   earlier pieces with higher priority.  Dask cancels only pieces not yet
   started, so running pieces poll a ``distributed.Variable`` holding the
   number of the first refuted piece (through their budget's ``stopped``
-  condition, at most every :data:`POLL_SECONDS`), and a piece whose worker
-  dies is run again by Dask.  Pieces run in a worker's thread: an engine
+  condition, at most every :data:`POLL_SECONDS`) and whether the scheduler
+  still wants their result (it does not once they are cancelled or their
+  client is gone, killed or not), and a piece whose worker dies is run
+  again by Dask.  The workers are not ours: sortcheck starts no Dask
+  process, and never ends one.  Pieces run in a worker's thread: an engine
   step that cannot be interrupted (building a large CNF) runs on until it
   returns, though nobody waits for it.  Each worker repeats the engine's
   preparation (for ``enumerate``, the reduction) once per check.
@@ -27,19 +32,18 @@ so pieces before it always finish and pieces after it are cancelled.
 from __future__ import annotations
 
 import ctypes
-import multiprocessing
 import multiprocessing.connection
 import os
 import sys
 import time
-import traceback
 import uuid
 from collections import deque
 from typing import Any, Sequence
 
 from sortcheck.engines import check, choose_engine, get_engine
 from sortcheck.engines.base import Budget, Options, Progress, Verdict
-from sortcheck.engines.runners.isolation import EngineFailure, check_in_child
+from sortcheck.engines.runners import processes
+from sortcheck.engines.runners.isolation import EngineFailure, check_in_child, needs_child
 from sortcheck.engines.runners.pieces import combine, decides, job_data, run_job
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
@@ -83,53 +87,18 @@ class InProcess:
         self.close()
 
 
-def _context() -> multiprocessing.context.BaseContext:
-    methods = multiprocessing.get_all_start_methods()
-    return multiprocessing.get_context("fork" if "fork" in methods else "spawn")
-
-
-def _serve(connection: Any) -> None:
-    """A worker process: run the jobs it is sent, answer each with its verdict, until told to stop."""
-    while True:
-        try:
-            message = connection.recv()
-        except EOFError:
-            return
-        if message is None:
-            return
-        number, engine, data = message
-        try:
-            answer = ("verdict", run_job(engine, data))
-        except BaseException as error:  # reported to the parent, which raises it there
-            answer = ("error", "".join(traceback.format_exception(error)).strip())
-        connection.send((number, answer))
-
-
-class _Worker:
-    def __init__(self, context):
-        self.connection, child_end = context.Pipe()
-        self.process = context.Process(target=_serve, args=(child_end,), daemon=True)
-        self.process.start()
-        child_end.close()
-        self.piece: int | None = None
-
-    def stop(self) -> None:
-        if self.process.is_alive():
-            self.process.kill()
-        self.process.join(timeout=5)
-        self.connection.close()
-
-
 class LocalProcesses:
     """Run pieces on ``jobs`` worker processes of this machine, started for each check.
 
-    The workers are forked when a check's pieces are known, so they inherit
-    what the engine prepared in finding them (for ``enumerate``, the
-    reduction) instead of repeating it (where only ``spawn`` exists, they
-    repeat it).  Pieces are handed out in piece order, one per idle worker.
-    When a piece is refuted (and not every piece is needed, as for
-    counting), the workers running later pieces are ended at once; at the
-    deadline every worker still running is ended.
+    The workers (:class:`~sortcheck.engines.runners.processes.Worker`: bound
+    to this process, which they never outlive) are forked when a check's
+    pieces are known, so they inherit what the engine prepared in finding
+    them (for ``enumerate``, the reduction) instead of repeating it (where
+    only ``spawn`` exists, they repeat it).  Pieces are handed out in piece
+    order, one per idle worker.  When a piece is refuted (and not every piece
+    is needed, as for counting), the workers running later pieces are ended
+    at once; when the budget expires (the deadline, or an interruption) every
+    worker still running is ended, and the pieces it ran stay unfinished.
     """
 
     def __init__(self, jobs: int):
@@ -137,59 +106,64 @@ class LocalProcesses:
             raise ValueError("jobs must be at least 1")
         self.jobs = jobs
         self.ran_on = f"{jobs} local process{'es' if jobs != 1 else ''}"
-        self._context = _context()
-        self._idle: list[_Worker] = []
+        self._idle: list[processes.Worker] = []
 
-    def _worker(self) -> _Worker:
-        return self._idle.pop() if self._idle else _Worker(self._context)
+    def _worker(self) -> processes.Worker:
+        return self._idle.pop() if self._idle else processes.Worker()
 
     def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
         self.close()  # workers of an earlier check lack what this check's engine prepared
         verdicts: list[Verdict | None] = [None] * len(jobs)
         waiting = deque(range(len(jobs)))
         attempts = [0] * len(jobs)
-        busy: dict[Any, _Worker] = {}
+        busy: dict[Any, processes.Worker] = {}
         first_refuted = len(jobs)
         try:
             while busy or (waiting and waiting[0] < first_refuted):
+                if budget.expired():
+                    break
                 while waiting and waiting[0] < first_refuted and len(busy) < self.jobs:
                     number = waiting.popleft()
                     worker = self._worker()
-                    worker.piece, attempts[number] = number, attempts[number] + 1
-                    worker.connection.send((number, engine, jobs[number]))
+                    attempts[number] += 1
+                    worker.send(number, run_job, engine, jobs[number])
                     busy[worker.connection] = worker
-                if budget.expired():
-                    break
                 budget.report(sum(v is not None for v in verdicts), len(jobs), f"{engine.name}: pieces")
                 for connection in multiprocessing.connection.wait(list(busy), timeout=POLL_SECONDS):
                     worker = busy.pop(connection, None)
                     if worker is None:  # ended above, after a refutation in the same round
                         continue
+                    number = worker.task
                     try:
-                        number, (kind, payload) = connection.recv()
-                    except (EOFError, OSError):
-                        self._lost(worker, attempts, waiting, engine)
+                        _, kind, payload = worker.receive()
+                    except EOFError:
+                        self._lost(worker, number, attempts, waiting, engine, budget)
                         continue
                     if kind == "error":
                         worker.stop()
                         raise EngineFailure(f"the {engine.name} engine failed on piece {number + 1}:\n{payload}")
                     verdicts[number] = payload
-                    worker.piece = None
                     self._idle.append(worker)
                     if decides(payload) and not complete and number < first_refuted:
                         first_refuted = number
-                        for other in [w for w in busy.values() if w.piece > number]:
+                        for other in [w for w in busy.values() if w.task > number]:
                             busy.pop(other.connection).stop()
         finally:
             for worker in busy.values():
                 worker.stop()
         return verdicts
 
-    def _lost(self, worker: _Worker, attempts: list[int], waiting: deque, engine) -> None:
-        """A worker process died under a piece: run the piece again on a new one, or give up."""
-        number = worker.piece
+    def _lost(self, worker: processes.Worker, number: int, attempts: list[int], waiting: deque, engine,
+              budget: Budget) -> None:
+        """A worker process died under a piece: run the piece again on a new one, or give up.
+
+        When the budget has expired (a signal to the process group ended the
+        worker as it interrupted this process), the piece just stays unfinished.
+        """
         code = worker.process.exitcode
         worker.stop()
+        if budget.expired():
+            return
         if attempts[number] >= ATTEMPTS:
             raise EngineFailure(f"the {engine.name} engine's process ended without an answer on piece "
                                 f"{number + 1} (exit code {code}), {attempts[number]} times")
@@ -197,11 +171,7 @@ class LocalProcesses:
 
     def close(self) -> None:
         for worker in self._idle:
-            try:
-                worker.connection.send(None)
-            except OSError:
-                pass
-            worker.stop()
+            worker.close()
         self._idle = []
 
     def __enter__(self):
@@ -239,12 +209,30 @@ def _roomier_allocator() -> None:
         mallopt(parameter, value)
 
 
+#: States of a task on a Dask worker that mean nobody waits for its result any more.
+_ABANDONED = frozenset({"cancelled", "released", "forgotten"})
+
+
+def _abandoned(worker, key: str) -> bool:
+    """Whether the scheduler gave up the task ``key`` running on ``worker`` (cancelled, or its client left)."""
+    task = worker.state.tasks.get(key)
+    return task is None or task.state in _ABANDONED
+
+
 def _dask_piece(engine, data: dict, number: int, stop_name: str) -> Verdict:
-    """A piece on a Dask worker: stops when the first refuted piece (in the shared Variable) comes before it."""
-    from distributed import Variable, get_client
+    """A piece on a Dask worker.
+
+    It stops when the first refuted piece (in the shared Variable) comes
+    before it, and when the scheduler gave its task up: the client cancelled
+    it, or the client went away (the process that submitted it was killed;
+    the workers are not ours to end, but our pieces on them end).
+    """
+    from distributed import Variable, get_client, get_worker
 
     _roomier_allocator()
 
+    worker = get_worker()
+    key = worker.get_current_task()
     stop = Variable(stop_name, client=get_client())
     state = {"asked": 0.0, "stopped": False}
 
@@ -253,8 +241,8 @@ def _dask_piece(engine, data: dict, number: int, stop_name: str) -> Verdict:
         if not state["stopped"] and now - state["asked"] >= POLL_SECONDS:
             state["asked"] = now
             try:
-                state["stopped"] = stop.get(timeout=5) < number
-            except Exception:  # the client went away: nobody waits for this piece
+                state["stopped"] = _abandoned(worker, key) or stop.get(timeout=5) < number
+            except Exception:  # the scheduler cannot be asked: nobody waits for this piece
                 state["stopped"] = True
         return state["stopped"]
 
@@ -385,11 +373,10 @@ def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "a
     if splits and hasattr(chosen, "pieces"):
         pieces = chosen.pieces(netlist, prop, options)
     if not pieces or len(pieces) < 2:
-        isolated = not chosen.cooperative or getattr(chosen, "isolate", False)
-        if budget.deadline is None or not isolated:
-            verdict = chosen.check(netlist, prop, budget, options)
-        else:
+        if needs_child(chosen, budget):
             verdict = check_in_child(chosen, netlist, prop, budget, options)
+        else:
+            verdict = chosen.check(netlist, prop, budget, options)
         verdict = verdict.with_choice(verdict.engine_reason or reason, time.perf_counter() - started)
         where = runner.ran_on if isinstance(runner, InProcess) else "this process"
         return _with_figures(verdict, {"ran_on": where, "pieces": 1})

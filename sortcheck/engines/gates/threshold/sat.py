@@ -52,7 +52,7 @@ from sortcheck.engines.gates.threshold.spec import ThresholdQuestion, refusal_of
 from sortcheck.engines.networks.cnf import dimacs
 from sortcheck.engines.runners.pieces import combine
 from sortcheck.engines.networks.sat import PROOF_SOLVER, PROOF_SOLVERS
-from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
+from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER, solve_interruptibly
 from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
 
@@ -103,8 +103,8 @@ def _solve(solver: Solver, assumptions: list[int], budget: Budget) -> bool | Non
     """The solver's answer under ``assumptions``; None when the budget ran out (deadline or stop condition) first."""
     if budget.expired():
         return None
-    if budget.deadline is None and budget.stopped is None:
-        return solver.solve(assumptions=assumptions)
+    if budget.deadline is None and budget.stopped is None:  # only an interruption of the run can stop it
+        return solve_interruptibly(solver, assumptions, None)
     finished = threading.Event()
 
     def watch() -> None:  # interrupt at the deadline or when the stop condition turns true
