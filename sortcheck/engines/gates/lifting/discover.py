@@ -13,10 +13,11 @@ between them.  :class:`NetworkDiscovery` finds them by simulation:
   words, the signatures of the comparison ``[b < a]`` (and ``[a < b]``,
   which differs on ties) and of every bit of the minimum and the maximum are
   looked up;
-* the pair with the most evidence (of those, the one whose evidence appears
-  earliest in the circuit) is taken as the next comparator: a comparator whose
-  words the circuit still computes shows all of it, while a chance likeness
-  of two comparisons in a sorting network shows one signature; its minimum and maximum replace it among the current words
+* the pair whose evidence appears earliest in the circuit is taken as the
+  next comparator, if its evidence is *strong* (an output bit beside the
+  comparison, or two output bits); a pair with only its comparison in the
+  circuit is taken only when no pair has strong evidence, since two
+  comparisons of different words of a sorting network can be one function; its minimum and maximum replace it among the current words
   (built as nodes of the *specification graph*, an and-inverter graph of the
   network found so far on the same inputs);
 * this repeats until every output word of the circuit has the signatures of
@@ -92,6 +93,11 @@ class Evidence:
     found: int
     first: int
     second: int
+    strong: bool = True
+
+    def rank(self) -> tuple[bool, int, int]:
+        """Smaller is better: strong evidence first, then the earliest, then the most."""
+        return (not self.strong, self.position, -self.found)
 
 
 @dataclass
@@ -202,10 +208,15 @@ class NetworkDiscovery:
                 moved = (x[0] ^ y[0]) & swap
                 if self._look(x[0] ^ moved) is None and self._look(y[0] ^ moved) is None:
                     continue
-            found = selects + self._output_places(x, y, swap)
+            bits = self._output_places(x, y, swap)
+            found = selects + bits
             if selects or len(found) >= MIN_BIT_EVIDENCE or (found and self.width == 1):
-                evidence = Evidence(min(found), len(found), one, other)
-                if best is None or (evidence.found, -evidence.position) > (best.found, -best.position):
+                # A comparison alone may be a chance likeness (in a sorting network, comparisons of
+                # different words can be the same function); with an output bit beside it, or two bits,
+                # the pair is almost surely a comparator of the circuit.
+                strong = len(bits) >= MIN_BIT_EVIDENCE or (bool(bits) and bool(selects)) or self.width == 1
+                evidence = Evidence(min(found), len(found), one, other, strong)
+                if best is None or evidence.rank() < best.rank():
                     best = evidence
         return best
 
@@ -292,8 +303,7 @@ class NetworkDiscovery:
             for i, first in enumerate(self.live):
                 for second in self.live[i + 1:]:
                     evidence = self._pair_evidence(first, second)
-                    if evidence is not None and (best is None or (evidence.found, -evidence.position)
-                                                 > (best.found, -best.position)):
+                    if evidence is not None and (best is None or evidence.rank() < best.rank()):
                         best = evidence
             if best is None:
                 return Discovered(list(self.blocks), failure=self._stuck())
