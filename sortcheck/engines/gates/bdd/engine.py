@@ -43,8 +43,9 @@ from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
 
 #: Live BDD nodes an attempt may reach.  A single CUDD operation that grows past it is stopped by the memory
-#: cap (manager.BYTES_PER_NODE per node); measured on a loaded 2-core machine, an operation stopped at
-#: this limit had run for at most about 2 s.
+#: cap (manager.BYTES_PER_NODE per node).  Measured on a loaded 2-core machine on the counting sorter of
+#: 64 x 2 bits, which outgrows it in both fixed orders: the slowest single operation took 2.0 s, and the
+#: four attempts (two at a sixteenth of the limit) 20 s in all.
 DEFAULT_NODE_LIMIT = 2_000_000
 
 BACKEND_NAMES = {"cudd": "CUDD", "python": "dd's pure-Python BDDs"}
@@ -160,11 +161,15 @@ def prove_with_bdds(circuit: GateCircuit, prop: Property, budget: Budget = Budge
 
     ``prop`` must fit the circuit and not be a stable partial sort
     (:meth:`BddEngine.refusal`).  ``backend`` forces ``"cudd"`` or
-    ``"python"`` (default: CUDD when it imports); ``orders`` restricts the
-    variable orders tried (default: all of
-    :data:`~sortcheck.engines.gates.bdd.orders.ORDER_NAMES`).  Runs in this
-    process: a single CUDD operation is not interrupted at the deadline (the
-    engine's ``check`` isolates itself when it has one).
+    ``"python"`` (default: CUDD when it imports); ``orders`` names the
+    variable orders to try (default:
+    :data:`~sortcheck.engines.gates.bdd.orders.DEFAULT_ORDERS`; ``"dynamic"``
+    only when asked for).  Runs in this process: the budget is consulted
+    between BDD operations, and one operation is not interrupted (at the
+    default node limit the slowest took 2.0 s on a loaded 2-core machine; with
+    ``"dynamic"`` reordering inside one operation took 79 s), so a caller
+    with a hard deadline runs it in a process it can end, as the engine's
+    ``check`` does.
     """
     started = time.perf_counter()
     backend = choose_backend(backend)
@@ -189,7 +194,7 @@ class BddEngine:
     backend : str or None
         ``"cudd"``, ``"python"`` (dd's pure-Python BDDs) or None for CUDD when it imports.
     orders : sequence of str or None
-        Variable orders to try; None for all.
+        Variable orders to try; None for word-major and interleaved.
     """
 
     name = "bdd"

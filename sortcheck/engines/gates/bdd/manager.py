@@ -25,6 +25,7 @@ operation runs to its end (the engine runs in a process that can be ended).
 
 from __future__ import annotations
 
+import os
 import time
 import warnings
 from typing import Any, Callable, Sequence
@@ -112,7 +113,7 @@ class BddManager:
         if self.backend == "cudd":
             import dd.cudd as module
             memory = BASE_BYTES + BYTES_PER_NODE * (node_limit or 0)
-            self.bdd = module.BDD(memory_estimate=min(memory, 1 << 32) if node_limit else None,
+            self.bdd = module.BDD(memory_estimate=min(memory, _physical_memory() // 2) if node_limit else None,
                                   initial_cache_size=1 << 18)
             self.bdd.configure(reordering=False)
             if node_limit:
@@ -134,8 +135,10 @@ class BddManager:
         started = time.perf_counter()
         try:
             return operation(*arguments)
-        except (RuntimeError, MemoryError) as error:  # CUDD gave up at its memory cap
-            if self.backend == "cudd" and self.node_limit:
+        except (RuntimeError, MemoryError, ValueError) as error:
+            # CUDD gave up at its memory cap: dd raises RuntimeError from apply, ValueError ("NULL") from ite
+            gave_up = not isinstance(error, ValueError) or "NULL" in str(error)
+            if self.backend == "cudd" and self.node_limit and gave_up:
                 raise NodeLimitReached(max(self.live_nodes(), self.peak_nodes()), self.node_limit) from error
             raise
         finally:
@@ -223,3 +226,11 @@ class BddManager:
         levels = self.bdd.var_levels
         return tuple(sorted(levels, key=levels.__getitem__))
 
+
+
+def _physical_memory() -> int:
+    """Bytes of memory of this machine (CUDD refuses an estimate at or above it); 8 GiB when unknown."""
+    try:
+        return os.sysconf("SC_PHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
+    except (ValueError, OSError, AttributeError):
+        return 8 << 30

@@ -12,9 +12,11 @@ exponentially.  Word circuits have two natural orders:
   blocks, lowered comparator networks) stay small: reading from the top bit
   down, a comparison is decided at the first bit where the words differ.
 
-A third entry, **dynamic**, starts from word-major and lets CUDD reorder
-variables while it works (group sifting, the bits of a word kept together);
-it helps circuits that neither fixed order suits, at a cost in time.
+A third order, **dynamic**, starts from word-major and lets CUDD reorder
+variables while it works (group sifting, the bits of a word kept together).
+It is tried only when asked for: reordering runs inside a BDD operation, which
+cannot be interrupted, and on a counting sorter of 64 x 2 bits one operation
+took 79 s (loaded 2-core machine) before the attempt reached 463,000 nodes.
 
 :func:`first_round` and :func:`second_round` list the attempts: every fixed
 order under a small node limit first, then every order under the full limit,
@@ -37,6 +39,9 @@ from sortcheck.model import GateCircuit, bit_name
 
 #: Orders by name; ``dynamic`` starts from ``word-major`` (see the module text).
 ORDER_NAMES = ("word-major", "interleaved", "dynamic")
+
+#: The orders tried when none are asked for.
+DEFAULT_ORDERS = ("word-major", "interleaved")
 
 #: The first round's node limit is the full limit divided by this.
 FIRST_ROUND_DIVISOR = 16
@@ -98,6 +103,8 @@ class Attempt:
 def first_round(node_limit: int, orders: Sequence[str] | None = None) -> list[Attempt]:
     """The first attempts: every fixed order under a small node limit (one order given: that order, full limit).
 
+    ``orders`` defaults to :data:`DEFAULT_ORDERS`.
+
     >>> [(a.order, a.node_limit) for a in first_round(1000)]
     [('word-major', 62), ('interleaved', 62)]
     >>> [(a.order, a.node_limit) for a in first_round(1000, ["interleaved"])]
@@ -120,7 +127,9 @@ def second_round(node_limit: int, orders: Sequence[str] | None = None, progress:
     was given (the first round already had the full limit).
 
     >>> [a.order for a in second_round(1000, progress={"word-major": 0.2, "interleaved": 0.7})]
-    ['interleaved', 'word-major', 'dynamic']
+    ['interleaved', 'word-major']
+    >>> [a.order for a in second_round(1000, ORDER_NAMES)]
+    ['word-major', 'interleaved', 'dynamic']
     """
     names = _checked(orders)
     if len(names) == 1:
@@ -131,7 +140,7 @@ def second_round(node_limit: int, orders: Sequence[str] | None = None, progress:
 
 
 def _checked(orders: Sequence[str] | None) -> list[str]:
-    names = list(ORDER_NAMES if orders is None else orders)
+    names = list(DEFAULT_ORDERS if orders is None else orders)
     for name in names:
         if name not in ORDER_NAMES:
             raise ValueError(f"unknown variable order {name!r} (expected one of {', '.join(ORDER_NAMES)})")
