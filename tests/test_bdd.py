@@ -248,7 +248,20 @@ def test_node_limit_reached_is_an_honest_unknown(backend):
     assert verdict.status is Status.UNKNOWN and verdict.stop is StopReason.SIZE_LIMIT
     assert verdict.figures["nodes_reached"] > 300
     assert "nothing is proved" in verdict.scope and "node limit" in verdict.scope
+    assert "simulated inputs found no failure, which proves nothing" in verdict.scope
     assert [a["outcome"] for a in verdict.figures["attempts"]] == ["size-limit"] * 4
+
+
+def test_past_the_node_limit_a_broken_circuit_is_still_refuted_by_simulation():
+    circuit = flipped(lower_network(merge_exchange(6), 4), 40)
+    verdict = prove_with_bdds(circuit, Sorts(), Budget(), node_limit=300)
+    assert verdict.status is Status.REFUTED and verdict.figures["method"] == "simulation"
+    example = verdict.counterexample
+    assert list(example.output) == run_gates(circuit, example.input)  # the independent evaluator
+    assert breaks_words(Sorts(), list(example.input), list(example.output), 4) and example.minimal is None
+    assert "not proved to have the fewest" in verdict.scope
+    quiet = prove_with_bdds(circuit, Sorts(), Budget(), node_limit=300, samples=0)
+    assert quiet.status is Status.UNKNOWN and quiet.stop is StopReason.SIZE_LIMIT
 
 
 def test_the_first_order_that_completes_decides():
@@ -339,3 +352,33 @@ def test_the_cli_runs_the_engine(tmp_path):
     write_netlist(counting_sorter(6, 2), path)
     code, out, _ = run("check", path, "--engine", "bdd")
     assert code == 0 and "bdd" in out and "BDDs of [y_i >= v]" in out
+
+
+@pytest.mark.skipif(not cudd_available(), reason="dd.cudd does not import here")
+def test_an_operation_that_outgrows_the_memory_cap_ends_at_the_node_limit(monkeypatch):
+    monkeypatch.setattr(manager_module, "BASE_BYTES", 0)  # the cap is then 200 bytes per node of the limit
+    names = [f"v{i}" for i in range(40)]
+    manager = BddManager(names, backend="cudd", node_limit=10)
+    variables = [manager.variable(name) for name in names]
+    function = manager.false
+    with pytest.raises(manager_module.NodeLimitReached):  # pairs v_i, v_(39-i) far apart: exponential size
+        for i in range(20):
+            function = manager.or_(function, manager.and_(variables[i], variables[39 - i]))
+
+
+def test_a_failure_found_before_the_limit_is_reported_without_the_minimality_claim(monkeypatch):
+    from sortcheck.engines.gates.bdd import attempt as attempt_module
+
+    def stop(*arguments):
+        raise manager_module.NodeLimitReached(12345, 100)
+
+    monkeypatch.setattr(attempt_module, "key_violation", stop)  # the thresholds are done, the key values stop
+    keyed = lower_network(merge_exchange(4), 3, key_bits=2)
+    first = keyed.outputs[0]
+    circuit = with_outputs(keyed, [first, OutputWord("y1", first.bits), *keyed.outputs[2:]])  # no permutation
+    prop = PartialSort(key_bits=2)
+    failing = failing_raw_inputs(circuit, prop)
+    verdict = prove_with_bdds(circuit, prop, Budget(), orders=["word-major"])
+    assert verdict.status is Status.REFUTED and verdict.counterexample.minimal is None
+    assert tuple(v % 8 for v in verdict.counterexample.input) in failing
+    assert "not proved to have the fewest" in verdict.scope

@@ -17,7 +17,8 @@ waits, start-up included.
 Part 2 breaks each counting sorter by turning one gate of its popcount adders
 into another op (a wrong count), refutes it with the bdd engine and with
 threshold SAT, and checks the bdd counterexample on the netlist (the circuit
-evaluated again) and its minimality claim.
+evaluated again) and its minimality claim.  ``limit`` marks a bdd check that
+ended at its node limit (unknown, or refuted by the simulation that follows).
 """
 
 from __future__ import annotations
@@ -82,6 +83,13 @@ def show(seconds: float, status: str | None, cap: float) -> str:
     return f"> {cap:.0f} s" if status in (None, "unknown") else f"{seconds:6.2f} s"
 
 
+def show_verdict(verdict, seconds: float, cap: float) -> str:
+    """The seconds of a decided check, ``limit`` with them for an unknown at the node limit, else past the cap."""
+    if verdict.status is Status.UNKNOWN and verdict.stop.value == "size-limit":
+        return f"limit {seconds:.0f} s"
+    return show(seconds, verdict.status.value, cap)
+
+
 def ratio(theirs: float, mine: float, ok: bool) -> str:
     return f"{theirs / mine:7.1f}x" if ok else "    n/a"
 
@@ -100,7 +108,7 @@ def part_sorters(cap: float, skip_large: bool, cli: bool) -> None:
         answer, theirs = miter(circuit, cap)
         decided = ours.status is not Status.UNKNOWN
         figures = ours.figures
-        print(f"{circuit.name:26} {len(circuit.gates):6,} {show(mine, ours.status.value, cap):>9} "
+        print(f"{circuit.name:26} {len(circuit.gates):6,} {show_verdict(ours, mine, cap):>9} "
               f"{show(cli_seconds, cli_status, cap) if cli else '-':>9} {show(sat_seconds, sat.status.value, cap):>9} "
               f"{ratio(sat_seconds, mine, decided and sat.status is not Status.UNKNOWN):>8} "
               f"{show(theirs, answer, cap):>9} {ratio(theirs, mine, decided and answer is not None):>9}"
@@ -131,10 +139,12 @@ def part_broken(cap: float, skip_large: bool) -> None:
         if example is not None:
             again = tuple(circuit.evaluate(list(example.input)))
             checked = "valid on the netlist" if again == tuple(example.output) else "NOT VALID"
-            text = f"{checked}, {example.ones} one bits, minimal {example.minimal}"
+            ones = sum(bin(value % (1 << circuit.width)).count("1") for value in example.input)
+            text = (f"{checked}, {ones} one bits, minimal {example.minimal}, found by "
+                    f"{ours.figures.get('method')}")
         else:
             text = ours.status.value
-        print(f"{circuit.name:52} {show(mine, ours.status.value, cap):>9} {show(theirs, sat.status.value, cap):>9}"
+        print(f"{circuit.name:52} {show_verdict(ours, mine, cap):>9} {show(theirs, sat.status.value, cap):>9}"
               f"  {text}", flush=True)
 
 

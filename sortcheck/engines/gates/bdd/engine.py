@@ -38,7 +38,7 @@ from sortcheck.engines.base import Budget, Options, Status, StopReason, Verdict,
 from sortcheck.engines.gates.bdd.attempt import Outcome, run_attempt
 from sortcheck.engines.gates.bdd.manager import choose_backend, dd_available
 from sortcheck.engines.gates.bdd.orders import first_round, second_round
-from sortcheck.engines.gates.simulation import counterexample_of
+from sortcheck.engines.gates.simulation import SEED, counterexample_of, quick_refute
 from sortcheck.errors import PropertyError
 from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property, check_fits
 
@@ -49,6 +49,10 @@ from sortcheck.model import GateCircuit, Merges, Netlist, PartialSort, Property,
 DEFAULT_NODE_LIMIT = 2_000_000
 
 BACKEND_NAMES = {"cudd": "CUDD", "python": "dd's pure-Python BDDs"}
+
+#: Corner-case and random inputs simulated when every attempt outgrew the node limit (a broken circuit too
+#: big for BDDs is then still refuted, without the fewest-ones claim).
+FALLBACK_SAMPLES = 1 << 14
 
 
 def _domain(prop: Property) -> str:
@@ -133,8 +137,10 @@ def _unknown(circuit: GateCircuit, prop: Property, outcomes: list[Outcome], figu
     reached = max(outcome.peak_nodes for outcome in outcomes)
     tried = ", ".join(f"{o.attempt.order} up to {o.attempt.node_limit:,}: {o.note}" for o in outcomes)
     figures["nodes_reached"] = reached
-    scope = (f"the BDDs outgrew the node limit under every variable order tried ({tried}); nothing is proved for "
-             f"{_inputs_text(circuit, prop)}")
+    simulated = (f"; {figures['simulated']:,} simulated inputs found no failure, which proves nothing"
+                 if figures.get("simulated") else "")
+    scope = (f"the BDDs outgrew the node limit under every variable order tried ({tried}){simulated}; nothing is "
+             f"proved for {_inputs_text(circuit, prop)}")
     return Verdict(Status.UNKNOWN, "bdd", prop, StopReason.SIZE_LIMIT, scope, figures["seconds"], None, figures)
 
 
@@ -154,9 +160,25 @@ def _attempts(circuit: GateCircuit, prop: Property, budget: Budget, node_limit: 
     return outcomes
 
 
+def _simulated(circuit: GateCircuit, prop: Property, outcomes: list[Outcome], figures: dict, samples: int,
+               budget: Budget) -> Verdict | None:
+    """The refutation by simulation after every attempt outgrew its limit; None when simulation finds nothing."""
+    found = quick_refute(circuit, prop, budget, samples, SEED)
+    if found is None:
+        figures["simulated"] = samples
+        return None
+    figures.update(method="simulation", simulated=samples, seed=SEED)
+    tried = ", ".join(sorted({outcome.attempt.order for outcome in outcomes}))
+    scope = (f"this input of {circuit.words} words of {circuit.width} bits breaks the property (found by simulating "
+             f"corner cases and random inputs with seed {SEED} after the BDDs outgrew the node limit of "
+             f"{figures['node_limit']:,} under every order tried: {tried}); it is not proved to have the fewest one "
+             f"bits")
+    return Verdict(Status.REFUTED, "bdd", prop, StopReason.COUNTEREXAMPLE, scope, figures["seconds"], found, figures)
+
+
 def prove_with_bdds(circuit: GateCircuit, prop: Property, budget: Budget = Budget(),
                     node_limit: int = DEFAULT_NODE_LIMIT, backend: str | None = None,
-                    orders: Sequence[str] | None = None) -> Verdict:
+                    orders: Sequence[str] | None = None, samples: int = FALLBACK_SAMPLES) -> Verdict:
     """The BDD check of ``circuit`` for ``prop`` within ``budget`` and ``node_limit`` live nodes.
 
     ``prop`` must fit the circuit and not be a stable partial sort
@@ -169,7 +191,9 @@ def prove_with_bdds(circuit: GateCircuit, prop: Property, budget: Budget = Budge
     default node limit the slowest took 2.0 s on a loaded 2-core machine; with
     ``"dynamic"`` reordering inside one operation took 79 s), so a caller
     with a hard deadline runs it in a process it can end, as the engine's
-    ``check`` does.
+    ``check`` does.  When every attempt outgrows ``node_limit``, ``samples``
+    corner-case and random inputs are simulated (0: none), so that a broken
+    circuit is still refuted; otherwise the verdict is ``unknown``.
     """
     started = time.perf_counter()
     backend = choose_backend(backend)
@@ -180,6 +204,10 @@ def prove_with_bdds(circuit: GateCircuit, prop: Property, budget: Budget = Budge
         return _proved(circuit, prop, outcomes, figures)
     if status == "refuted":
         return _refuted(circuit, prop, outcomes, figures)
+    if status == "size-limit" and samples and not budget.expired():
+        simulated = _simulated(circuit, prop, outcomes, figures, samples, budget)
+        if simulated is not None:
+            return simulated
     return _unknown(circuit, prop, outcomes, figures)
 
 
@@ -195,6 +223,8 @@ class BddEngine:
         ``"cudd"``, ``"python"`` (dd's pure-Python BDDs) or None for CUDD when it imports.
     orders : sequence of str or None
         Variable orders to try; None for word-major and interleaved.
+    samples : int
+        Inputs simulated when every attempt outgrows the node limit (0: none).
     """
 
     name = "bdd"
@@ -203,8 +233,8 @@ class BddEngine:
     isolate = True
 
     def __init__(self, node_limit: int = DEFAULT_NODE_LIMIT, backend: str | None = None,
-                 orders: Sequence[str] | None = None):
-        self.node_limit, self.backend, self.orders = node_limit, backend, orders
+                 orders: Sequence[str] | None = None, samples: int = FALLBACK_SAMPLES):
+        self.node_limit, self.backend, self.orders, self.samples = node_limit, backend, orders, samples
 
     def refusal(self, netlist: Netlist, prop: Property, options: Options = Options()
                 ) -> tuple[StopReason, str] | None:
@@ -226,5 +256,6 @@ class BddEngine:
         refused = refused_verdict(self, netlist, prop, options, started)
         if refused is not None:
             return refused
-        verdict = prove_with_bdds(netlist, prop, budget, self.node_limit, self.backend, self.orders)  # type: ignore
+        verdict = prove_with_bdds(netlist, prop, budget, self.node_limit, self.backend, self.orders,  # type: ignore
+                                  self.samples)
         return replace(verdict, seconds=time.perf_counter() - started)
