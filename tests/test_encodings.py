@@ -117,3 +117,47 @@ def test_gate_circuit_smt_script_matches_its_golden_file_and_z3_proves_it():
     broken = dataclasses.replace(GOLDEN_PAIR, gates=GOLDEN_PAIR.gates[:1] + (Gate(gate.out, "xnor", gate.inputs),)
                                  + GOLDEN_PAIR.gates[2:])
     assert z3_answer(smtlib_text(broken, Sorts())) == z3.sat
+
+
+# --- gate circuits: threshold conditions as BDDs (encodings/gate-bdd-thresholds.md) ----------------------------------
+
+def golden_circuits():
+    """(circuit, property, order) of the golden file: a counting sorter, it broken, and a pair asked signed order."""
+    from sortcheck.model import Gate
+    from sortcheck.model.counting import counting_sorter
+    sorter = counting_sorter(3, 2)
+    first_and = next(i for i, gate in enumerate(sorter.gates) if gate.op == "and")
+    gate = sorter.gates[first_and]
+    broken = dataclasses.replace(sorter, gates=sorter.gates[:first_and] + (Gate(gate.out, "or", gate.inputs),)
+                                 + sorter.gates[first_and + 1:], name="counting-3-w2-first-and-as-or")
+    return [(sorter, Sorts(), "word-major"), (broken, Sorts(), "word-major"),
+            (GOLDEN_PAIR, Sorts(signed=True), "interleaved")]
+
+
+def golden_tables(backend=None):
+    from sortcheck.engines.gates.bdd.attempt import threshold_table
+    return [threshold_table(circuit, prop, order, backend) for circuit, prop, order in golden_circuits()]
+
+
+def test_gate_bdd_thresholds_match_their_golden_file():
+    from gate_reference import run_gates, signed_values
+    from sortcheck.engines.gates.bdd.manager import BACKENDS, cudd_available
+
+    golden = json.loads((ENCODINGS / "gate-bdd-thresholds.golden.json").read_text())
+    for backend in BACKENDS if cudd_available() else ("python",):
+        assert golden_tables(backend) == golden, backend
+    # Independent reading: each threshold's failing inputs, by evaluating every input with the reference
+    # evaluator and comparing [y_i >= v] with the thresholded inputs sorted by Python's sorted.
+    for (circuit, prop, _), table in zip(golden_circuits(), golden):
+        width = circuit.width
+        for row in table["thresholds"]:
+            v = row["v"]
+            weights = []
+            for raw in itertools.product(range(1 << width), repeat=circuit.words):
+                x = signed_values(raw, width, prop.signed)
+                y = signed_values(run_gates(circuit, raw), width, prop.signed)
+                if [int(value >= v) for value in y] != sorted(int(value >= v) for value in x):
+                    weights.append(sum(bin(word).count("1") for word in raw))
+            assert (row["violation_nodes"] == 1) == (not weights), (table["circuit"], v)
+            assert row["fewest_ones"] == (min(weights) if weights else None), (table["circuit"], v)
+    assert [row["fewest_ones"] for row in golden[1]["thresholds"]] == [None, None, None, 1]

@@ -30,7 +30,7 @@ SMT_GATES = 800
 
 
 def engines_for(circuit):
-    names = ["auto", "sat", "lift"]
+    names = ["auto", "sat", "lift", "bdd"]
     if sum(circuit.widths) <= 18:  # exhaustive simulation: 2^18 inputs at most, to keep the suite quick
         names.append("simulate")
     if len(circuit.gates) <= SMT_GATES:

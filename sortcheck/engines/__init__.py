@@ -13,6 +13,7 @@ import time
 from sortcheck.engines.base import Budget, Counterexample, Engine, Options, Progress, Status, StopReason, Verdict
 from sortcheck.engines.networks.enumeration import EnumerateEngine, redundant_comparators_by_enumeration
 from sortcheck.engines.gates.portfolio import GatePipeline
+from sortcheck.engines.gates.bdd import BddEngine
 from sortcheck.engines.gates.threshold.sat import GateSatEngine
 from sortcheck.engines.gates.simulation import SimulateEngine
 from sortcheck.engines.gates.lifting.engine import LiftEngine
@@ -34,6 +35,7 @@ ENGINES: dict[str, Engine] = {
     "lift": LiftEngine(),
     "simulate": SimulateEngine(max_exhaustive_bits=EXHAUSTIVE_GATE_BITS),
     "smt": SmtEngine(),
+    "bdd": BddEngine(),
 }
 
 #: ``auto`` simulates gate circuits on every input only up to this many input bits when they do not lift:

@@ -18,7 +18,10 @@ three phases:
    none exists: that answer proves minimality.
 
 When the budget runs out, the result keeps the best counterexample found,
-with ``minimal`` false.
+with ``minimal`` false.  A counterexample an engine has already proved to
+have the fewest one bits (``minimal`` true, as the ``bdd`` engine's are,
+read off BDDs that hold every failing input) is re-checked and kept as it
+is: searching again could only find another input of the same measure.
 """
 
 from __future__ import annotations
@@ -130,6 +133,15 @@ def _search_by_sat(circuit: GateCircuit, prop: Property, failures: CircuitFailur
     return best, floor
 
 
+def _proved_minimal(failures: CircuitFailures, example: Counterexample, width: int) -> Counterexample:
+    """``example``, proved minimal by its engine, after checking that it fails and that ``ones`` is its measure."""
+    raw = to_raw(example.input, width)
+    if word_measure(raw) != example.ones or not failures(raw):
+        raise AssertionError(f"internal error: the counterexample {example.input} proved minimal with {example.ones} "
+                             "one bits does not fail with that many")
+    return example
+
+
 def minimize_circuit_counterexample(circuit: GateCircuit, prop: Property, example: Counterexample, budget: Budget,
                                     max_evaluations: int = MAX_EVALUATIONS) -> Counterexample:
     """A failing input of fewest one bits, proved minimal when the search completes.
@@ -145,9 +157,13 @@ def minimize_circuit_counterexample(circuit: GateCircuit, prop: Property, exampl
     >>> small = minimize_circuit_counterexample(swapped, Sorts(), first, Budget())
     >>> small.input, small.output, small.minimal, small.ones
     ((1, 0), (1, 0), True, 1)
+    >>> minimize_circuit_counterexample(swapped, Sorts(), small, Budget()) == small  # already proved minimal
+    True
     """
     width = circuit.width
     failures = CircuitFailures(circuit, prop)
+    if example.minimal and example.ones is not None:
+        return _proved_minimal(failures, example, width)
     best = shrink(to_raw(example.input, width), failures, WORD_PASSES, measure=word_measure)
     smaller, covered = _search_by_weight(failures, len(circuit.gates), word_measure(best), budget, max_evaluations)
     if smaller is not None:

@@ -21,7 +21,7 @@ DRUP proof.  It then checks everything again without the engine:
 The result is ``{"certified": bool, "certificate": {...}}`` for the report.
 ``certified`` is true only when every part was checked and nothing failed; a
 verdict of an engine that gives no certificate material (``smt``,
-``simulate``, ``lift``, unknown verdicts) is never certified, and the scope
+``simulate``, ``lift``, ``bdd``, unknown verdicts) is never certified, and the scope
 says why (:data:`UNCERTIFIED`).  The CNF encoding of each claim is trusted
 (``encodings/comparator-network-cnf.md``; for gate circuits
 ``encodings/gate-circuit-cnf.md`` and ``encodings/gate-threshold-conditions.md``),
@@ -73,6 +73,7 @@ UNCERTIFIED = {
             "recorded",
     "simulate": "verdicts of simulation are not certified in this version: the inputs evaluated are not recorded",
     "smt": "smt verdicts are not certified in this version: the SMT solver's proof is not recorded",
+    "bdd": "bdd verdicts are not certified in this version: a BDD computation leaves no proof to check again",
 }
 OUR_EVALUATOR = "sortcheck re-evaluation (report/reevaluate.py)"
 

@@ -5,6 +5,7 @@
 * ``lifting/``: the circuit proved to be a comparator network, then checked as one;
 * ``sweeping/``: and-inverter graphs and SAT sweeping (equivalence signal by signal);
 * ``threshold/``: threshold decomposition and SAT;
+* ``bdd/``: threshold decomposition with BDDs (CUDD), fewest-ones counterexamples;
 * ``smt.py``: the property on whole words with z3;
 * ``cnf.py``: the Tseitin encoding every SAT technique shares;
 * ``portfolio.py``: ``auto`` for gate circuits.
