@@ -6,7 +6,9 @@ and splits the check, the runner runs the pieces and
 :func:`~sortcheck.engines.runners.pieces.combine` makes one verdict of them; otherwise
 the check runs whole, in this process.  Every runner gives the same verdict,
 counterexample and counts: the first refuted piece in piece order decides,
-so pieces before it always finish and pieces after it are cancelled.
+so pieces before it always finish and pieces after it are cancelled.  A
+*race* (:class:`~sortcheck.engines.runners.pieces.Race`: whole strategies for
+one check, side by side) ends when any piece is proved or refuted.
 
 * :class:`InProcess` runs the pieces one after another here.
 * :class:`LocalProcesses` runs them on worker processes it starts and ends
@@ -44,7 +46,7 @@ from sortcheck.engines import check, choose_engine, get_engine
 from sortcheck.engines.base import Budget, Options, Progress, Verdict
 from sortcheck.engines.runners import processes
 from sortcheck.engines.runners.isolation import EngineFailure, check_in_child, needs_child
-from sortcheck.engines.runners.pieces import combine, decides, job_data, run_job
+from sortcheck.engines.runners.pieces import Race, combine, decisive, job_data, remember_netlist, run_job
 from sortcheck.errors import UsageError
 from sortcheck.model import DEFAULT_PROPERTY, Netlist, Property, check_fits
 
@@ -66,14 +68,15 @@ class InProcess:
         self.ran_on = ran_on
         self.splits = splits
 
-    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool, race: bool = False
+            ) -> list[Verdict | None]:
         verdicts: list[Verdict | None] = [None] * len(jobs)
         for number, data in enumerate(jobs):
             if budget.expired():
                 break
             budget.report(number, len(jobs), f"{engine.name}: pieces")
             verdicts[number] = run_job(engine, data, budget.stopped)
-            if decides(verdicts[number]) and not complete:
+            if decisive(verdicts[number], race) and not complete:
                 break
         return verdicts
 
@@ -111,7 +114,8 @@ class LocalProcesses:
     def _worker(self) -> processes.Worker:
         return self._idle.pop() if self._idle else processes.Worker()
 
-    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool, race: bool = False
+            ) -> list[Verdict | None]:
         self.close()  # workers of an earlier check lack what this check's engine prepared
         verdicts: list[Verdict | None] = [None] * len(jobs)
         waiting = deque(range(len(jobs)))
@@ -144,9 +148,9 @@ class LocalProcesses:
                         raise EngineFailure(f"the {engine.name} engine failed on piece {number + 1}:\n{payload}")
                     verdicts[number] = payload
                     self._idle.append(worker)
-                    if decides(payload) and not complete and number < first_refuted:
-                        first_refuted = number
-                        for other in [w for w in busy.values() if w.task > number]:
+                    if decisive(payload, race) and not complete and number < first_refuted:
+                        first_refuted = 0 if race else number  # a race's winner ends every other piece
+                        for other in [w for w in busy.values() if race or w.task > number]:
                             busy.pop(other.connection).stop()
         finally:
             for worker in busy.values():
@@ -282,7 +286,8 @@ class DaskCluster:
                 raise self._failure from None
         return self._client
 
-    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool) -> list[Verdict | None]:
+    def run(self, engine, jobs: Sequence[dict], budget: Budget, complete: bool, race: bool = False
+            ) -> list[Verdict | None]:
         from distributed import Variable, wait
 
         run_id = uuid.uuid4().hex
@@ -308,10 +313,10 @@ class DaskCluster:
                     future = futures[number]
                     if number < first_refuted and verdicts[number] is None and future.done():
                         verdicts[number] = future.result()
-                        if decides(verdicts[number]) and not complete and number < first_refuted:
-                            first_refuted = number
-                            stop.set(number)
-                            self.client.cancel(futures[number + 1:])
+                        if decisive(verdicts[number], race) and not complete and number < first_refuted:
+                            first_refuted = 0 if race else number  # a race's winner ends every other piece
+                            stop.set(-1 if race else number)
+                            self.client.cancel([f for n, f in enumerate(futures) if n > number or race and n != number])
         finally:
             stop.set(-1)
             self.client.cancel([f for f in futures if not f.done()])
@@ -384,12 +389,21 @@ def check_split(netlist: Netlist, prop: Property | None = None, engine: str = "a
         reason, time.perf_counter() - started)
 
 
+def _jobs(engine, netlist: Netlist, prop: Property, pieces: Sequence[dict], budget: Budget, options: Options
+          ) -> list[dict]:
+    """The job data of ``pieces``; workers forked after this find the netlist parsed."""
+    deadline = None if budget.deadline is None else time.time() + (budget.remaining() or 0.0)
+    jobs = [job_data(engine.name, netlist, prop, piece, options, deadline) for piece in pieces]
+    if jobs:
+        remember_netlist(jobs[0]["netlist"], netlist)
+    return jobs
+
+
 def run_pieces(engine, netlist: Netlist, prop: Property, pieces: Sequence[dict], budget: Budget, options: Options,
                runner) -> Verdict:
     """Run ``pieces`` of ``engine``'s check with ``runner`` and combine their verdicts."""
     started = time.perf_counter()
-    deadline = None if budget.deadline is None else time.time() + (budget.remaining() or 0.0)
-    jobs = [job_data(engine.name, netlist, prop, piece, options, deadline) for piece in pieces]
+    jobs = _jobs(engine, netlist, prop, pieces, budget, options)
     verdicts = runner.run(engine, jobs, budget, complete=options.count)
     combined = combine(engine.name, prop, verdicts, runner.ran_on, time.perf_counter() - started,
                        complete=options.count)
@@ -405,9 +419,13 @@ def _staged(engine, netlist: Netlist, prop: Property, budget: Budget, options: O
     if isinstance(staged, Verdict):
         verdict = staged.with_choice(staged.engine_reason or reason, time.perf_counter() - started)
         return _with_figures(verdict, {"ran_on": "this process", "pieces": 1})
-    combined = run_pieces(staged.engine, netlist, prop, staged.pieces, budget, options, runner)
-    verdict = staged.finish(combined)
-    return verdict.with_choice(verdict.engine_reason or reason, time.perf_counter() - started)
+    while not isinstance(staged, Verdict):
+        if isinstance(staged, Race):
+            jobs = _jobs(staged.engine, netlist, prop, staged.pieces, budget, options)
+            staged = staged.finish(runner.run(staged.engine, jobs, budget, complete=False, race=True))
+        else:
+            staged = staged.finish(run_pieces(staged.engine, netlist, prop, staged.pieces, budget, options, runner))
+    return staged.with_choice(staged.engine_reason or reason, time.perf_counter() - started)
 
 
 def _with_figures(verdict: Verdict, extra: dict) -> Verdict:

@@ -20,7 +20,9 @@ An engine whose check runs steps of its own before the part that splits
 offers instead ``staged(netlist, prop, budget, options) -> Verdict |
 Staged``: it runs those steps in the calling process and returns their
 verdict when they decide (or when the rest does not split, after running it
-whole), else a :class:`Staged` with the pieces of the rest.
+whole), else a :class:`Staged` with the pieces of the rest, or a
+:class:`Race` of whole strategies to run side by side (the first to decide
+ends the others); the ``finish`` of either may return the next of them.
 
 A *job* is what a worker needs to run one piece, as plain data: the engine's
 name, the netlist as format v1 text (:func:`sortcheck.load.write.dump_netlist`),
@@ -50,12 +52,27 @@ class Staged:
     """The rest of a staged check as pieces: the engine whose pieces they are, and how to finish.
 
     ``finish`` turns the combined verdict of the pieces into the check's
-    verdict (with what the steps before them did).
+    verdict (with what the steps before them did), or into what to run next.
     """
 
     engine: Any
     pieces: list[dict]
-    finish: Callable[[Verdict], Verdict]
+    finish: Callable[[Verdict], "Verdict | Staged | Race"]
+
+
+@dataclass(frozen=True)
+class Race:
+    """Strategies of a staged check run side by side: the first to decide (proved or refuted) ends the others.
+
+    Each piece is one whole strategy for the same check (not a part of it),
+    so any piece's decisive verdict is the check's.  ``finish`` gets every
+    piece's verdict (None: stopped or not started) and returns the check's
+    verdict, or what to run next.
+    """
+
+    engine: Any
+    pieces: list[dict]
+    finish: Callable[[list["Verdict | None"]], "Verdict | Staged | Race"]
 
 
 def job_data(engine: str, netlist: Netlist, prop: Property, piece: dict, options: Options,
@@ -69,6 +86,17 @@ def job_data(engine: str, netlist: Netlist, prop: Property, piece: dict, options
     """
     return {"engine": engine, "netlist": dump_netlist(netlist), "property": prop.to_json(), "piece": dict(piece),
             "options": {"width": options.width, "count": options.count, "certify": options.certify}, "deadline": deadline}
+
+
+def remember_netlist(text: str, netlist: Netlist) -> None:
+    """Let :func:`netlist_of` answer ``text`` with ``netlist`` in this process and in workers forked after it.
+
+    Parsing a large gate circuit's text costs seconds; the process that wrote
+    the text already holds the netlist.
+    """
+    if text not in _parsed and len(_parsed) >= _PARSED_LIMIT:
+        _parsed.pop(next(iter(_parsed)))
+    _parsed[text] = netlist
 
 
 def netlist_of(text: str) -> Netlist:
@@ -106,6 +134,13 @@ def run_job(engine, data: dict[str, Any], stopped=None) -> Verdict:
     _, netlist, prop, piece, options, deadline = job_from_data(data)
     timeout = None if deadline is None else max(0.0, deadline - time.time())
     return engine.check_piece(netlist, prop, piece, Budget.of(timeout, stopped=stopped), options)
+
+
+def decisive(result: Any, race: bool) -> bool:
+    """Whether a piece's result ends the run: :func:`decides`, or in a race any proved or refuted verdict."""
+    if race and isinstance(result, Verdict):
+        return result.status in (Status.PROVED, Status.REFUTED)
+    return decides(result)
 
 
 def decides(result: Any) -> bool:
