@@ -18,10 +18,10 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 
-import networkx as nx
 
 from sortcheck.errors import NetlistError
-from sortcheck.load.grouping import show_cycle, some_cycle
+from sortcheck.load.grouping import show_cycle
+from sortcheck.model.graphs import adjacency, find_cycle, topological_order
 
 _NUMBER = re.compile(r"^[0-9]{1,18}$")
 _SYMBOL = re.compile(r"^([ilobcjf])([0-9]{1,18}) (.+)$")
@@ -182,13 +182,12 @@ def _check_acyclic(graph: _Graph, source: str) -> None:
         seen.add(lhs // 2)
     else:
         return
-    dependencies = nx.DiGraph()
     index_of = {lhs // 2: index for index, (lhs, _, _) in enumerate(graph.ands)}
-    for lhs, rhs0, rhs1 in graph.ands:
-        dependencies.add_edges_from((rhs // 2, lhs // 2) for rhs in (rhs0, rhs1) if rhs // 2 in index_of)
-    if nx.is_directed_acyclic_graph(dependencies):
+    dependencies = adjacency((rhs // 2, lhs // 2) for lhs, rhs0, rhs1 in graph.ands for rhs in (rhs0, rhs1)
+                             if rhs // 2 in index_of)
+    if topological_order(dependencies) is not None:
         return
-    cycle = some_cycle(dependencies)
+    cycle = find_cycle(dependencies)
     start = min(range(len(cycle)), key=lambda i: index_of[cycle[i]])
     cycle = cycle[start:] + cycle[:start]
     path = show_cycle([str(2 * variable) for variable in cycle])

@@ -47,15 +47,15 @@ import os
 import re
 from dataclasses import dataclass, field
 
-import networkx as nx
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.decode import decode_text, read_file_bytes
 from sortcheck.load.grouping import (
-    choose_grouping, describe_grouping, group_bits, read_sidecar, show_cycle, some_cycle,
+    choose_grouping, describe_grouping, group_bits, read_sidecar, show_cycle,
 )
 from sortcheck.model import GateCircuit, Gate, Property
 from sortcheck.model.circuit import Signal, bit_name
+from sortcheck.model.graphs import adjacency, find_cycle, topological_order
 
 _UNSUPPORTED = {
     ".subckt": "subcircuits (hierarchical BLIF) are not supported",
@@ -186,11 +186,10 @@ def _check_references(model: _Model, source: str) -> None:
     for name, number in uses:
         if name not in defined:
             raise NetlistError(f"undefined signal {name!r}", source, f"line {number}")
-    graph = nx.DiGraph()
-    graph.add_edges_from((name, cover.out) for cover in model.covers for name in cover.inputs)
-    if nx.is_directed_acyclic_graph(graph):
+    graph = adjacency((name, cover.out) for cover in model.covers for name in cover.inputs)
+    if topological_order(graph) is not None:
         return
-    cycle = some_cycle(graph)
+    cycle = find_cycle(graph)
     line_of = {cover.out: cover.line for cover in model.covers}
     start = min(range(len(cycle)), key=lambda i: line_of[cycle[i]])
     cycle = cycle[start:] + cycle[:start]

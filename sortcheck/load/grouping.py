@@ -39,7 +39,6 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Sequence
 
-import networkx as nx
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.decode import decode_text, load_json
@@ -269,22 +268,6 @@ def choose_grouping(sidecar: Grouping | None, words: int | None, width: int | No
 
 
 # --- shared by the bit-level readers ---------------------------------------------------------
-
-def some_cycle(graph: nx.DiGraph) -> list:
-    """The nodes of one cycle of a graph that has one, in linear time.
-
-    Inside a strongly connected component every node has a successor in the component, so a walk
-    along such successors must come back to a node it has seen: from there on the walk is a cycle.
-    """
-    component = next(c for c in nx.strongly_connected_components(graph)
-                     if len(c) > 1 or graph.has_edge(next(iter(c)), next(iter(c))))
-    node, path, position = next(iter(component)), [], {}
-    while node not in position:
-        position[node] = len(path)
-        path.append(node)
-        node = next(successor for successor in graph.successors(node) if successor in component)
-    return path[position[node]:]
-
 
 def show_cycle(names: list[str], limit: int = 8) -> str:
     """``a -> b -> a``, shortened to its first ``limit`` names for long cycles.

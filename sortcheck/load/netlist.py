@@ -12,13 +12,13 @@ import re
 from pathlib import Path
 from typing import Any
 
-import networkx as nx
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.aiger import read_aiger
 from sortcheck.load.blif import read_blif
 from sortcheck.load.decode import decode_text, load_json, read_file_bytes
 from sortcheck.load.schema import check_header, validate_shape
+from sortcheck.model.graphs import find_cycle, topological_order
 from sortcheck.model import (
     OP_ARITY, ComparatorNetwork, GateCircuit, Gate, Netlist, OutputWord, Word, bit_name, property_from_json,
 )
@@ -185,11 +185,11 @@ def _check_reference(signal: Any, defined: dict[str, str], widths: dict[str, int
 
 
 def _check_acyclic(circuit: GateCircuit, source: str) -> None:
-    graph = circuit.graph
-    if nx.is_directed_acyclic_graph(graph):
+    graph = circuit.signal_graph
+    if topological_order(graph) is not None:
         return
     order = {gate.out: index for index, gate in enumerate(circuit.gates)}
-    cycle = [edge[0] for edge in nx.find_cycle(graph)]
+    cycle = find_cycle(graph)
     start = min(range(len(cycle)), key=lambda i: order[cycle[i]])
     cycle = cycle[start:] + cycle[:start]
     path = " -> ".join(cycle + [cycle[0]])

@@ -13,12 +13,13 @@ import itertools
 import json
 from functools import lru_cache
 from importlib import resources
-from typing import Any, Iterable
-
-import jsonschema
+from typing import TYPE_CHECKING, Any, Iterable
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.decode import NotAnInteger, TooLargeInteger
+
+if TYPE_CHECKING:  # pragma: no cover
+    import jsonschema
 
 FORMAT_VERSION = 1
 KINDS = ("comparator-network", "gate-circuit")
@@ -33,6 +34,8 @@ def netlist_schema() -> dict:
 
 @lru_cache(maxsize=1)
 def _validator() -> jsonschema.protocols.Validator:
+    import jsonschema  # imported here: reading AIGER and BLIF does not need it
+
     schema = netlist_schema()
     validator_class = jsonschema.validators.validator_for(schema)
     validator_class.check_schema(schema)

@@ -13,9 +13,12 @@ from dataclasses import dataclass, field
 from functools import cached_property
 from typing import TYPE_CHECKING, Sequence
 
-import networkx as nx
+
+from sortcheck.model.graphs import topological_order
 
 if TYPE_CHECKING:  # pragma: no cover
+    import networkx
+
     from sortcheck.model.properties import Property
 
 Signal = str | int
@@ -136,26 +139,40 @@ class GateCircuit:
         return max(self.widths, default=0)
 
     @cached_property
-    def graph(self) -> nx.DiGraph:
-        """Signal graph: an edge from every gate input signal to the gate's output."""
-        graph = nx.DiGraph()
-        for word in self.inputs:
-            graph.add_nodes_from(bit_name(word.name, i) for i in range(word.width))
+    def signal_graph(self) -> dict[str, list[str]]:
+        """Successor lists of the signals: an edge from every gate input signal to the gate's output."""
+        graph: dict[str, list[str]] = {bit_name(word.name, i): [] for word in self.inputs for i in range(word.width)}
         for gate in self.gates:
-            graph.add_node(gate.out)
-            graph.add_edges_from((source, gate.out) for source in gate.inputs if isinstance(source, str))
+            graph.setdefault(gate.out, [])
+        for gate in self.gates:
+            for source in gate.inputs:
+                if isinstance(source, str):
+                    graph.setdefault(source, []).append(gate.out)
+        return graph
+
+    @cached_property
+    def graph(self) -> "networkx.DiGraph":
+        """The signal graph as a networkx graph (for the path and ancestor questions of the explanations)."""
+        import networkx  # imported here: loading and checking do not need it
+
+        graph = networkx.DiGraph()
+        graph.add_nodes_from(self.signal_graph)
+        graph.add_edges_from((source, target) for source, targets in self.signal_graph.items() for target in targets)
         return graph
 
     @cached_property
     def gate_order(self) -> tuple[Gate, ...]:
         """The gates in a topological order (every gate after the gates it reads)."""
         by_out = {gate.out: gate for gate in self.gates}
-        return tuple(by_out[node] for node in nx.topological_sort(self.graph) if node in by_out)
+        order = topological_order(self.signal_graph)
+        if order is None:
+            raise ValueError("the gates form a cycle")
+        return tuple(by_out[node] for node in order if node in by_out)
 
     @cached_property
     def signal_depth(self) -> dict[str, int]:
         """Gates on the longest path from any input to each signal (inputs: 0)."""
-        depth: dict[str, int] = {node: 0 for node in self.graph if self.graph.in_degree(node) == 0}
+        depth: dict[str, int] = dict.fromkeys(self.signal_graph, 0)  # gate outputs are overwritten below
         for gate in self.gate_order:
             depth[gate.out] = 1 + max((depth[s] for s in gate.inputs if isinstance(s, str)), default=0)
         return depth

@@ -59,7 +59,7 @@ from sortcheck.engines.gates.bdd.engine import DEFAULT_NODE_LIMIT, BddEngine
 from sortcheck.engines.gates.lifting.engine import LiftEngine, lift, lifted_verdict
 from sortcheck.engines.gates.simulation import SimulateEngine, quick_refute
 from sortcheck.engines.gates.threshold.sat import MIN_SPLIT_GATES, GateSatEngine
-from sortcheck.engines.runners.isolation import check_in_child
+from sortcheck.engines.runners.isolation import check_in_child, may_start_children
 from sortcheck.engines.runners.pieces import Race, Staged
 from sortcheck.model import GateCircuit, Netlist, Property
 
@@ -265,7 +265,7 @@ class GatePipeline:
         return _with_step(verdict, "lift", step)
 
     def _bdd(self, circuit: GateCircuit, prop: Property, budget: Budget, options: Options) -> Verdict:
-        if budget.deadline is None:
+        if budget.deadline is None or not may_start_children():  # a worker is ended by its parent instead
             verdict = self.bdd.check(circuit, prop, budget, options)
         else:
             verdict = check_in_child(self.bdd, circuit, prop, budget, options)
@@ -279,7 +279,7 @@ class GatePipeline:
         return _with_step(verdict, "bdd", step)
 
     def _threshold_sat(self, circuit: GateCircuit, prop: Property, budget: Budget, options: Options) -> Verdict:
-        if budget.deadline is None:
+        if budget.deadline is None or not may_start_children():
             verdict = self.sat.check(circuit, prop, budget, options)
         else:
             verdict = check_in_child(self.sat, circuit, prop, budget, options)

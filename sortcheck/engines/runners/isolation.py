@@ -54,6 +54,11 @@ def needs_child(engine: Engine, budget: Budget) -> bool:
     return isolated and budget.deadline is not None or not engine.cooperative and interruption.watched
 
 
+def may_start_children() -> bool:
+    """Whether this process may start a child: not in a worker (a daemon), which its own parent ends instead."""
+    return not processes.context().current_process().daemon
+
+
 def check_in_child(engine: Engine, netlist: Netlist, prop: Property, budget: Budget, options: Options) -> Verdict:
     """Run ``engine.check`` in a child process that is killed if it overruns the budget."""
     started = time.monotonic()
