@@ -25,7 +25,6 @@ What is checked, and against what:
   ``corpus/rtl/expected-verdicts.txt``; a counterexample breaks the claim by ``sorted`` when the netlist is
   evaluated by ``tests/netlist_reference.py``.
 
-Production bugs found are the tests marked ``xfail(strict=True)``; their reasons say what happens.
 """
 
 from __future__ import annotations
@@ -229,17 +228,8 @@ def test_lowered_sorter_lifts_to_its_own_comparators(family, n, width, style, si
     assert_lifting_is_the_circuit(circuit, lifting, prop, inputs_for(circuit, np.random.default_rng(n * width)))
 
 
-# Found by this file: a comparator that swaps on too few simulated inputs is missed by the first search; the
-# sweep refutes the candidate and learns an input, but the second round's search then finds almost nothing.
-# The reason, seen by rebuilding the index in a copy of the code: NetworkDiscovery.__init__ indexes the circuit's
-# signatures (_signature_index) before lift_by_function appends the learnt inputs to both graphs (learn), so every
-# look-up of a signature whose learnt bit is 1 misses.  The same circuits lift with the index rebuilt after learning.
-STALE_INDEX = ("a second round of lift_by_function searches a signature index built before the learnt inputs were "
-               "added (NetworkDiscovery indexes in __init__, lift_by_function calls learn afterwards): the search "
-               "stops after a few comparators")
-
-
-@pytest.mark.xfail(strict=True, raises=AssertionError, reason=STALE_INDEX)
+# Once a failure: a comparator that swaps on too few simulated inputs is missed by the first search; the sweep
+# refutes the candidate and learns an input, and the second search must look signatures up with that input too.
 @pytest.mark.parametrize("family,n,width,style,signed,key_bits",
                          [("merge-exchange", 12, 6, "mux", True, 2), ("merge-exchange", 10, 5, "and-or", False, 2)])
 def test_key_only_sorter_that_needs_a_second_round_lifts(family, n, width, style, signed, key_bits):
@@ -314,14 +304,9 @@ def test_pruned_median_and_selection_lift_to_their_comparators(family, n, width,
     assert (lifted[:, outputs] == np.sort(rows, axis=1)[:, outputs]).all()  # its property on every 0-1 input
 
 
-@pytest.mark.xfail(strict=True, raises=AssertionError, reason=(
-    "merge exchange on 9 words pruned to its median, with only the median output word, does not lift at 3 to 5 bits "
-    "in any style (it does at 6 and 8 bits): the search stops after 19 of 22 comparators ('no pair of current words "
-    "has its minimum, maximum or comparison computed in the circuit'); comparator (1, 8) swaps on 1 of the 2,048 "
-    "simulated inputs at 4 bits, and with only its minimum kept it shows one output bit of evidence, fewer than "
-    "MIN_BIT_EVIDENCE = 2 (the whole sorter, with both outputs, lifts); the block search of lift() fails too, so the "
-    "lift engine answers unknown"))
-@pytest.mark.parametrize("style", ["mux"])
+# Once a failure: comparator (1, 8) swaps on 1 of the 2,048 simulated inputs at 4 bits, and with only its
+# minimum kept it shows one output bit of evidence (weak evidence is now taken when no pair has strong evidence).
+@pytest.mark.parametrize("style", ["mux", "and-or", "xor"])
 def test_merge_exchange_median_with_one_output_word_lifts(style):
     pruned, outputs, circuit, prop = pruned_case("merge-exchange", 9, 4, style, "median")
     lifting = lift_by_function(circuit, prop)

@@ -332,6 +332,13 @@ class Budget:
         if self.progress is not None:
             self.progress(done, total, phase)
 
+    def share(self, seconds: float) -> "Budget":
+        """This budget cut to at most ``seconds`` from now (same callback and stop condition)."""
+        deadline = time.monotonic() + seconds
+        if self.deadline is not None:
+            deadline = min(deadline, self.deadline)
+        return Budget(deadline, self.progress, self.stopped)
+
     def without_progress(self) -> "Budget":
         """The same deadline with no callback and no stop condition (for work done in another process)."""
         return Budget(self.deadline)

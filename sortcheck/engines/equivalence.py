@@ -9,12 +9,18 @@ call on a miter of the two networks' 0-1 circuits settles it for inputs of
 any values.
 
 Two gate circuits with the same input and output words are compared bit for
-bit: random simulation first (bit-parallel), then a miter (the two circuits
-on shared input variables, structurally hashed into one CNF, and "some output
-bit differs") solved by SAT.  When both circuits lift to comparator networks
-(:mod:`sortcheck.engines.gates.lifting.engine`: every block proved to put the minimum and
-maximum of two whole words on its outputs), the two networks are compared on
-0-1 inputs instead, which scales to widths a miter never reaches.  A network
+bit: random simulation first (bit-parallel), then SAT sweeping
+(:mod:`sortcheck.engines.gates.sweeping.equal_outputs`: internal signals of the
+second proved equal to signals of the first, in topological order, so two
+netlists of one design are compared in many small SAT calls), and if that is
+left undecided, a miter (the two circuits on shared input variables,
+structurally hashed into one CNF, and "some output bit differs") solved by SAT.  When both circuits lift to comparator networks
+(:mod:`sortcheck.engines.gates.lifting.engine`: each proved equal to a
+comparator network), the two networks are compared on 0-1 inputs instead,
+which scales to widths a miter never reaches.  Sweeping is tried before
+lifting when the two circuits are alike (most signals of the second are
+computed by the first too, as in two netlists of one design), after it
+otherwise.  A network
 and a gate circuit are compared at the circuit's width, the network lowered
 to gates first.
 
@@ -43,6 +49,7 @@ from sortcheck.engines.base import Budget, Status
 from sortcheck.engines.gates.cnf import CnfBuilder, encode_circuit
 from sortcheck.engines.gates.simulation import block_words_for, compile_circuit, evaluate_rows, new_table
 from sortcheck.engines.gates.lifting.engine import lift
+from sortcheck.engines.gates.sweeping.equal_outputs import CircuitPair, outputs_equal
 from sortcheck.engines.solving import Interrupted, solve_within
 from sortcheck.errors import UsageError
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, Sorts
@@ -50,6 +57,12 @@ from sortcheck.model.lowering import lower_network
 
 #: Networks on more channels than this are first checked for sorting (see :func:`_both_sort`).
 SORTER_SHORTCUT_CHANNELS = 12
+
+#: Circuits at least this alike (share of the second's signals the first computes too) are swept before lifting.
+ALIKE = 0.5
+
+#: Seconds SAT sweeping of alike circuits may take before lifting is tried (then sweeping again, unlimited).
+SWEEP_FIRST_SECONDS = 20.0
 
 #: Random simulation rounds (blocks of bit-parallel inputs) before the miter is solved.
 SIMULATION_BLOCKS = 4
@@ -136,12 +149,39 @@ def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = F
     found = _simulate(first, second, budget)  # type: ignore[arg-type]
     if found is not None:
         return _differ(first, second, found, "random simulation", started, {"simulated_blocks": SIMULATION_BLOCKS})
+    pair = CircuitPair.of(first, second)  # type: ignore[arg-type]
+    alike = pair.likeness >= ALIKE
+    if alike:  # two netlists of one design: sweeping is quick, unless they are large and lifting is quicker
+        swept = _swept(first, second, budget.share(SWEEP_FIRST_SECONDS), started, pair)  # type: ignore[arg-type]
+        if swept is not None:
+            return swept
     lifted = _lifted(first, second, signed, budget)  # type: ignore[arg-type]
     if lifted is not None:
         answer = _networks(*lifted, budget, started)
         if answer.status is not Status.REFUTED or _differs_as_words(first, second, answer.input, signed):
             return _as_lifted(first, second, answer, lifted, signed, started, lowered)
+    if not budget.expired():
+        swept = _swept(first, second, budget, started, CircuitPair.of(first, second))  # type: ignore[arg-type]
+        if swept is not None:
+            return swept
     return _miter(first, second, budget, started)  # type: ignore[arg-type]
+
+
+def _swept(first: GateCircuit, second: GateCircuit, budget: Budget, started: float, pair: CircuitPair
+           ) -> Equivalence | None:
+    """The answer of SAT sweeping the second circuit into the first, or None when it was left undecided."""
+    answer = outputs_equal(first, second, budget, pair)
+    figures = {"sweep": answer.figures, "likeness": round(pair.likeness, 4)}
+    if answer.status == "different":
+        return _differ(first, second, _words_of(first, answer.input_bits), "SAT sweeping", started, figures)
+    if answer.status == "equal":
+        sweep = answer.figures["sweep"]
+        scope = (f"the two circuits give the same output bits on every input of {first.words} words of widths "
+                 f"{list(first.widths)} (all {sum(first.widths)} input bits free): proved by SAT sweeping "
+                 f"({sweep['candidates_proved']} internal signals of the second proved equal to signals of the "
+                 f"first, {sweep['sat_calls'] + sweep['window_calls']} SAT calls)")
+        return Equivalence(Status.PROVED, "SAT sweeping", scope, time.perf_counter() - started, figures=figures)
+    return None
 
 
 def _lifted(first: GateCircuit, second: GateCircuit, signed: bool, budget: Budget
@@ -181,10 +221,10 @@ def _as_lifted(first: GateCircuit, second: GateCircuit, answer: Equivalence,
         return _differ(first, second, _words_for(answer.input, first.width, signed), method, started, figures)
     if answer.status is Status.UNKNOWN:
         return dataclasses.replace(answer, method=method, figures=figures, seconds=time.perf_counter() - started)
-    proved = ("the gate circuit was proved, block by block, to be a comparator network" if lowered else
-              "both circuits were proved, block by block, to be comparator networks")
-    scope = (f"{proved} on {first.words} words of {first.width} bits ({order} min/max blocks), and the two "
-             f"networks compute the same function: {answer.scope}")
+    proved = ("the gate circuit was proved equal to a comparator network" if lowered else
+              "both circuits were proved equal to comparator networks")
+    scope = (f"{proved} on every input of {first.words} words of {first.width} bits ({order} min/max; by SAT "
+             f"sweeping or block by block), and the two networks compute the same function: {answer.scope}")
     return Equivalence(Status.PROVED, method, scope, time.perf_counter() - started, figures=figures)
 
 

@@ -15,9 +15,11 @@ between them.  :class:`NetworkDiscovery` finds them by simulation:
   looked up;
 * the pair whose evidence appears earliest in the circuit is taken as the
   next comparator, if its evidence is *strong* (an output bit beside the
-  comparison, or two output bits); a pair with only its comparison in the
-  circuit is taken only when no pair has strong evidence, since two
-  comparisons of different words of a sorting network can be one function; its minimum and maximum replace it among the current words
+  comparison, or two output bits); a pair with only its comparison, or only
+  one output bit, in the circuit is taken only when no pair has strong
+  evidence, since two comparisons of different words of a sorting network
+  can be one function (and a comparator that rarely swaps on the patterns may
+  show one bit); its minimum and maximum replace it among the current words
   (built as nodes of the *specification graph*, an and-inverter graph of the
   network found so far on the same inputs);
 * this repeats until every output word of the circuit has the signatures of
@@ -45,29 +47,14 @@ import numpy as np
 from sortcheck.engines.base import Budget
 from sortcheck.engines.gates.lifting.blocks import BlockOrder
 from sortcheck.engines.gates.sweeping.aig import AndInverterGraph
-from sortcheck.engines.gates.word_blocks import limbs_to_rows
-from sortcheck.engines.gates.word_corners import random_keys
+from sortcheck.engines.gates.sweeping.signatures import PATTERNS, SEED, input_signatures
 from sortcheck.model import GateCircuit, bit_name
 from sortcheck.model.circuit import Signal
 
-#: Output bits of a pair found in the circuit that make it a comparator when its comparison is not found.
+#: Output bits of a pair found in the circuit that make its evidence strong when its comparison is not found.
 MIN_BIT_EVIDENCE = 2
 #: A signature counts as evidence only when it is 1, and 0, on at least this many patterns.
 MIN_EVIDENCE_PATTERNS = 16
-#: Simulated input patterns (signature bits).
-PATTERNS = 2048
-SEED = 20261205
-
-
-def input_signatures(words: int, width: int, patterns: int = PATTERNS, seed: int = SEED) -> list[int]:
-    """Signatures of the input bits (word-major, least significant bit first) on biased random words.
-
-    >>> len(input_signatures(3, 2, 128)), max(input_signatures(3, 2, 128)) < 2 ** 128
-    (6, True)
-    """
-    keys = random_keys(np.random.default_rng(seed), patterns, words, width)
-    rows = limbs_to_rows(keys, width)
-    return [int.from_bytes(row.astype("<u8").tobytes(), "little") for row in rows]
 
 
 def circuit_graph(circuit: GateCircuit, signatures: list[int], patterns: int = PATTERNS
@@ -210,10 +197,12 @@ class NetworkDiscovery:
                     continue
             bits = self._output_places(x, y, swap)
             found = selects + bits
-            if selects or len(found) >= MIN_BIT_EVIDENCE or (found and self.width == 1):
+            if found:
                 # A comparison alone may be a chance likeness (in a sorting network, comparisons of
-                # different words can be the same function); with an output bit beside it, or two bits,
-                # the pair is almost surely a comparator of the circuit.
+                # different words can be the same function), and so may one output bit; with an output
+                # bit beside the comparison, or two bits, the pair is almost surely a comparator of the
+                # circuit.  Weak evidence is taken only when no pair has strong evidence (a comparator
+                # that rarely swaps on the patterns, whose other output optimisation removed).
                 strong = len(bits) >= MIN_BIT_EVIDENCE or (bool(bits) and bool(selects)) or self.width == 1
                 evidence = Evidence(min(found), len(found), one, other, strong)
                 if best is None or evidence.rank() < best.rank():
@@ -289,6 +278,9 @@ class NetworkDiscovery:
 
     def run(self) -> Discovered:
         """Take comparators until the outputs are current words (see the module text)."""
+        self._index = self._signature_index()  # the graphs may have learnt patterns since they were built
+        self._word_values.clear()
+        self._evidence.clear()
         if len(set(self.circuit.widths)) > 1:
             return Discovered(failure="the input words have different widths")
         if any(output.width != self.width for output in self.circuit.outputs):

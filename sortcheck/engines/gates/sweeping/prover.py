@@ -76,8 +76,9 @@ class EquivalenceProver:
     graph: AndInverterGraph
     budget: Budget
     conflicts: int = CONFLICTS
-    #: Nodes a window takes as free (the natural cut, such as the bits of a network's words); empty: no windows.
-    cut: frozenset[int] = frozenset()
+    #: Nodes a window takes as free (the natural cut, such as the bits of a network's words, or nodes proved
+    #: equal to others so far); empty: no windows.  The caller may add to it between questions.
+    cut: set[int] | frozenset[int] = frozenset()
     figures: ProverFigures = field(default_factory=ProverFigures)
     _solver: Solver | None = None
     _variables: dict[int, int] = field(default_factory=dict)

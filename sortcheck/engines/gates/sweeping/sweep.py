@@ -7,7 +7,7 @@ and is *speculatively* replaced by that reference node from then on, so the
 nodes after it are rebuilt on it: every candidate leaves an *obligation*,
 "the rebuilt node equals its reference node", stated on the graph in which
 all the earlier candidates have been replaced.  The obligations are proved
-in topological order, in batches, by
+one by one in topological order by
 :class:`~sortcheck.engines.gates.sweeping.prover.EquivalenceProver`.
 
 Why proving the obligations proves the candidates: take them in topological
@@ -15,18 +15,17 @@ order.  The first one's rebuilt node reads no replaced node, so it is the
 circuit node itself.  Once the first ``k`` candidates are proved, replacing
 them changes no node's function, so the rebuilt node of candidate ``k + 1``
 computes what the circuit node computes, and its obligation is its
-candidate.  A batch whose obligations are proved together is the same
-argument with the batch's obligations taken one by one.
+candidate.
 
-A batch that fails gives an input; evaluated on the graph with the
-replacements, the first obligation in order that fails there is a candidate
-that is really wrong (every earlier one holds on that input, so the rebuilt
-node equals the circuit node there).  The input is simulated on both graphs
-so that every signature learns from it, and the sweep starts again with the
-candidates the refined signatures still give.  A batch left undecided by the
-conflict limit is halved until its undecided obligations stand alone; those
-candidates are not replaced in the next round.  Proved obligations are kept
-from round to round.
+A refuted obligation gives an input on which its candidate is really wrong
+(every candidate it reads is proved, so its rebuilt node is the circuit
+node).  The input is simulated on both graphs, so that every signature
+learns from it, and the obligations stated on the wrong replacement (those
+of the nodes that read it, directly or not) wait for the next round; the
+others are still proved in this round.  An obligation left undecided by the
+conflict limit is treated alike, and its candidate is not replaced again.
+The next round rebuilds the graph with the candidates the refined
+signatures still give.  Proved obligations are kept from round to round.
 
 ``encodings/gate-sat-sweeping.md`` gives the argument and the clauses.
 
@@ -52,8 +51,6 @@ from sortcheck.engines.base import Budget
 from sortcheck.engines.gates.sweeping.aig import AndInverterGraph
 from sortcheck.engines.gates.sweeping.prover import EquivalenceProver
 
-#: Obligations proved in one SAT call (a failing batch costs a round).
-BATCH = 1
 #: Rounds of the sweep (each after a refuted candidate or an undecided one) before it gives up.
 MAX_ROUNDS = 64
 
@@ -130,12 +127,15 @@ class _Sweeper:
     """The state of one :func:`sweep` (see the module text)."""
 
     def __init__(self, circuit: AndInverterGraph, reference: AndInverterGraph, budget: Budget,
-                 prover: EquivalenceProver, preferred: set[int] | None, targets: set[int] | None):
+                 prover: EquivalenceProver, preferred: set[int] | None, targets: set[int] | None,
+                 grow_cut: bool = False):
         self.circuit, self.reference, self.budget, self.prover = circuit, reference, budget, prover
+        self.grow_cut = grow_cut
         self.preferred, self.targets = preferred, targets
         self.limit = len(reference)
         self.proved_pairs: set[tuple[int, int]] = set()
         self.excluded: set[int] = set()
+        self.fanouts: list[list[int]] | None = None
         self.result = Sweep([0] * len(circuit), prover)
 
     def rebuild(self) -> list[_Obligation]:
@@ -167,60 +167,75 @@ class _Sweeper:
         return obligations
 
     def prove(self, obligations: list[_Obligation]) -> bool:
-        """Prove the obligations not proved before; False when a round must follow (refuted or undecided)."""
+        """Prove the obligations not proved before; False when a round must follow (some refuted or undecided).
+
+        A refuted or undecided candidate *taints* the circuit nodes after it
+        (their obligations were stated on its replacement): those are left to
+        the next round, every other obligation is still proved in this one.
+        """
         pending = [ob for ob in obligations if (ob.rebuilt, ob.wanted) not in self.proved_pairs]
-        for start in range(0, len(pending), BATCH):
+        tainted: set[int] = set()
+        settled = True
+        for ob in pending:
+            if ob.node in tainted:
+                continue
             if self.budget.expired():
                 self.result.timed_out = True
                 return False
-            if not self._prove_batch(pending[start:start + BATCH]):
-                return False
-        return True
-
-    def _prove_batch(self, batch: list[_Obligation]) -> bool:
-        answer = self.prover.prove_all([(ob.rebuilt, ob.wanted) for ob in batch])
-        if answer.status == "equal":
-            self.proved_pairs.update((ob.rebuilt, ob.wanted) for ob in batch)
-            return True
-        if answer.status == "different":
-            self._refuted(batch, answer.pattern or {})
-            return False
-        if len(batch) == 1:
-            self.result.undecided += 1
-            self.excluded.add(batch[0].node)
-            return False
-        half = len(batch) // 2
-        return self._prove_batch(batch[:half]) and self._prove_batch(batch[half:])
-
-    def _refuted(self, batch: list[_Obligation], pattern: dict[int, int]) -> None:
-        """Learn the input; the first obligation it breaks is a wrong candidate (module text)."""
-        learn((self.circuit, self.reference), pattern)
-        last = self.reference.patterns - 1
-        for ob in batch:
-            if (self.reference.value(ob.rebuilt) ^ self.reference.value(ob.wanted)) >> last & 1:
+            if self.reference.value(ob.rebuilt) != self.reference.value(ob.wanted):
+                status = "different"  # a pattern learnt in this round tells them apart already
+            else:
+                answer = self.prover.prove(ob.rebuilt, ob.wanted)
+                status = answer.status
+                if status == "different":
+                    learn((self.circuit, self.reference), answer.pattern or {})
+            if status == "equal":
+                self.proved_pairs.add((ob.rebuilt, ob.wanted))
+                if self.grow_cut and isinstance(self.prover.cut, set):
+                    self.prover.cut.add(ob.wanted >> 1)  # later windows may stop at it
+                continue
+            settled = False
+            if status == "different":
                 self.result.refuted += 1
-                if not (self.circuit.value(2 * ob.node) ^ self.reference.value(ob.wanted)) >> last & 1:
-                    self.excluded.add(ob.node)  # the signatures still agree: do not try it again
-                return
-        raise AssertionError("internal error: the solver's input breaks no obligation of its batch")
+            else:
+                self.result.undecided += 1
+                self.excluded.add(ob.node)
+            self._taint(ob.node, tainted)
+        return settled
+
+    def _taint(self, node: int, tainted: set[int]) -> None:
+        """Add ``node`` and every circuit node that reads it, directly or not, to ``tainted``."""
+        if self.fanouts is None:
+            self.fanouts = [[] for _ in range(len(self.circuit))]
+            for reader in range(len(self.circuit)):
+                for literal in self.circuit.fanins[reader] or ():
+                    self.fanouts[literal >> 1].append(reader)
+        stack = [node]
+        while stack:
+            current = stack.pop()
+            if current not in tainted:
+                tainted.add(current)
+                stack.extend(self.fanouts[current])
 
 
 def sweep(circuit: AndInverterGraph, reference: AndInverterGraph, budget: Budget,
           prover: EquivalenceProver | None = None, preferred: set[int] | None = None,
-          targets: set[int] | None = None) -> Sweep:
+          targets: set[int] | None = None, grow_cut: bool = False) -> Sweep:
     """Rebuild ``circuit`` in ``reference`` with every provable candidate merged (see the module text).
 
     Both graphs must have the same inputs, made first and in the same order,
     and signatures on the same patterns.  The reference nodes that exist when
     the sweep starts and are in ``targets`` (None: all of them) are the
     candidates' targets; of several with one signature, one in ``preferred``
-    is taken first.
+    is taken first.  With ``grow_cut`` every reference node proved equal to a
+    circuit node becomes a cut point of the prover's windows (for two
+    netlists of one design, whose equalities are local).
     """
     started = time.perf_counter()
     if circuit.inputs != reference.inputs[:len(circuit.inputs)]:
         raise ValueError("the two graphs must share their inputs")
-    prover = prover or EquivalenceProver(reference, budget, cut=frozenset(preferred or ()))
-    state = _Sweeper(circuit, reference, budget, prover, preferred, targets)
+    prover = prover or EquivalenceProver(reference, budget, cut=set(preferred or ()))
+    state = _Sweeper(circuit, reference, budget, prover, preferred, targets, grow_cut)
     result = state.result
     while result.rounds < MAX_ROUNDS:
         result.rounds += 1
