@@ -209,7 +209,8 @@ def _signature_text(value, patterns):
 
 
 def _graph_record(graph, literals, netlist):
-    return {"netlist": netlist.name, "signals": {name: literal for name, literal in literals.items() if isinstance(name, str)},
+    return {"netlist": netlist.name,
+            "signals": {name: literal for name, literal in literals.items() if isinstance(name, str)},
             "and_nodes": [[node, *fanin] for node, fanin in enumerate(graph.fanins) if fanin is not None]}
 
 
@@ -222,7 +223,8 @@ def sweep_golden():
 
     pair = ComparatorNetwork(2, ((0, 1),))
     circuit_netlist, reference_netlist = lower_network(pair, 2, style="and-or"), lower_network(pair, 2, style="mux")
-    signatures = [sum((words[k] >> i & 1) << p for p, words in enumerate(SWEEP_PATTERNS)) for k in range(2) for i in range(2)]
+    signatures = [sum((words[k] >> i & 1) << p for p, words in enumerate(SWEEP_PATTERNS))
+                  for k in range(2) for i in range(2)]
     circuit, circuit_literals = circuit_graph(circuit_netlist, signatures, len(SWEEP_PATTERNS))
     reference, reference_literals = circuit_graph(reference_netlist, signatures, len(SWEEP_PATTERNS))
     limit = len(reference)
@@ -267,7 +269,8 @@ def sweep_golden():
         for mine, theirs in zip(circuit_netlist.outputs, reference_netlist.outputs):
             for i, (bit, wanted_bit) in enumerate(zip(mine.bits, theirs.bits)):
                 outputs.append({"bit": f"{mine.name}[{i}]", "circuit": circuit_literals[bit],
-                                "mapped": swept.literal(circuit_literals[bit]), "reference": reference_literals[wanted_bit]})
+                                "mapped": swept.literal(circuit_literals[bit]),
+                                "reference": reference_literals[wanted_bit]})
         # The output bits not mapped onto the reference's own output literals, asked in one batch.
         batch = prover.prove_all([(output["mapped"], output["reference"]) for output in outputs
                                   if output["mapped"] != output["reference"]])
@@ -283,8 +286,10 @@ def sweep_golden():
                      "one written with muxes (the reference); see gate-sat-sweeping.md",
             "patterns": [list(words) for words in SWEEP_PATTERNS], "cut": list(SWEEP_CUT),
             "circuit": _graph_record(circuit, circuit_literals, circuit_netlist),
-            "reference": {**_graph_record(reference, reference_literals, reference_netlist), "nodes_before_sweep": limit},
-            "rounds": rounds, "finished": swept.finished, "mapping": {str(node): swept.mapping[node] for node in and_nodes},
+            "reference": {**_graph_record(reference, reference_literals, reference_netlist),
+                          "nodes_before_sweep": limit},
+            "rounds": rounds, "finished": swept.finished,
+            "mapping": {str(node): swept.mapping[node] for node in and_nodes},
             "outputs": outputs, "queries": queries,
             "incremental_variables": {str(node): variable for node, variable in sorted(prover._variables.items())},
             "figures": figures}
@@ -450,8 +455,8 @@ def test_gate_sat_sweeping_matches_its_golden_file():
             if refuted is not None and refuted["node"] == node:
                 bits = {int(k): v for k, v in refuted["pattern"].items()}
                 words = (bits.get(1, 0) | bits.get(2, 0) << 1, bits.get(3, 0) | bits.get(4, 0) << 1)
-                failing = [w for w in every_input
-                           if _literal_value(reference_values[w], rebuilt) != _literal_value(reference_values[w], wanted)]
+                failing = [w for w in every_input if _literal_value(reference_values[w], rebuilt)
+                           != _literal_value(reference_values[w], wanted)]
                 assert failing == [words]  # the only input on which the candidate is wrong: the model is forced
                 patterns.append(words)
                 break
