@@ -251,9 +251,10 @@ def sweep_golden():
                        "refuted": None})
         return obligations
 
-    def recording_refuted(state, batch, pattern):
-        rounds[-1]["refuted"] = {"node": batch[0].node, "pattern": {str(k): v for k, v in sorted(pattern.items())}}
-        return refuted(state, batch, pattern)
+    def recording_refuted(state, obligation, pattern):
+        rounds[-1]["refuted"] = {"node": obligation.node,
+                                 "pattern": {str(k): v for k, v in sorted(pattern.items())}}
+        return refuted(state, obligation, pattern)
 
     def recording_prove_all(self, pairs):
         _RecordingSolver.pairs = [list(pair) for pair in pairs]

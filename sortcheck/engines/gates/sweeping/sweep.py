@@ -188,7 +188,7 @@ class _Sweeper:
                 answer = self.prover.prove(ob.rebuilt, ob.wanted)
                 status = answer.status
                 if status == "different":
-                    learn((self.circuit, self.reference), answer.pattern or {})
+                    self._refuted(ob, answer.pattern or {})
             if status == "equal":
                 self.proved_pairs.add((ob.rebuilt, ob.wanted))
                 if self.grow_cut and isinstance(self.prover.cut, set):
@@ -202,6 +202,10 @@ class _Sweeper:
                 self.excluded.add(ob.node)
             self._taint(ob.node, tainted)
         return settled
+
+    def _refuted(self, obligation: _Obligation, pattern: dict[int, int]) -> None:
+        """Learn the input that refutes ``obligation``: every signature of both graphs gets its bit."""
+        learn((self.circuit, self.reference), pattern)
 
     def _taint(self, node: int, tainted: set[int]) -> None:
         """Add ``node`` and every circuit node that reads it, directly or not, to ``tainted``."""
