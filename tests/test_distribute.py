@@ -23,6 +23,7 @@ import threading
 import time
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from reference import breaks, run
@@ -177,7 +178,8 @@ class RecordingPieces:
 
     Only the piece that begins at unit 0 checks the network it is given (the one-hot breaker: its
     counterexample ``1 0 ... 0`` is the first vector of that piece); the others check merge exchange, which
-    sorts, on the same channels, so they have seconds of work and no counterexample (the one-hot breaker has
+    sorts, on the same channels, after idling until their budget stops them (at most 60 s), so they have work
+    that outlasts the first piece's and no counterexample (the one-hot breaker has
     failing inputs in other pieces too).  The first piece starts its work only once the piece that begins at
     unit ``waits_for`` has started, so that piece is at work when the counterexample ends the check, whatever
     the scheduling.
@@ -196,6 +198,9 @@ class RecordingPieces:
         while first == 0 and not (folder / f"started-{self.waits_for}").exists() and waited < 3000:
             time.sleep(0.01)  # at most 30 s, should no other worker take a piece
             waited += 1
+        while first != 0 and not budget.expired() and waited < 6000:
+            time.sleep(0.01)  # the later pieces idle (at most 60 s) until stopped: the first piece's counterexample
+            waited += 1       # takes as long to come as their own work, so they must not finish before it
         checked = netlist if first == 0 else build_family("merge-exchange", netlist.channels)
         verdict = UNREDUCED.check_piece(checked, prop, piece, budget, options)
         (folder / f"ended-{first}").write_text(verdict.status.value)
@@ -457,9 +462,11 @@ def test_the_trap_breaks_exactly_where_it_says():
 
 
 @pytest.mark.parametrize("circuit, status", [(None, Status.PROVED), ("trapped", Status.REFUTED)])
-def test_auto_for_gate_circuits_splits_its_threshold_sat_step(dask_runner, circuit, status):
+def test_auto_for_gate_circuits_splits_its_threshold_sat_step(dask_runner, monkeypatch, circuit, status):
+    from sortcheck.engines import GATE_PIPELINE
     from sortcheck.model.counting import counting_sorter
 
+    monkeypatch.setattr(GATE_PIPELINE, "bdd_width", 0)  # threshold SAT's pieces are what is tested: no BDDs
     circuit = trapped() if circuit else counting_sorter(6, 5)
     single = check_split(circuit, Sorts(), runner=InProcess(splits=False))  # what --jobs 1 runs
     assert single.status is status and single.figures["method"] == "threshold-sat"
@@ -473,6 +480,36 @@ def test_auto_for_gate_circuits_splits_its_threshold_sat_step(dask_runner, circu
         assert verdict.counterexample == single.counterexample
     if status is Status.REFUTED:
         assert single.counterexample.input[:4] == TRAP
+
+
+@pytest.mark.parametrize("circuit, engine", [("counting", "bdd"), ("lowered", "lift"), ("trapped", "bdd")])
+def test_auto_for_gate_circuits_races_lifting_and_bdds_on_workers(circuit, engine):
+    # The race gives what the strategies give one after another (--jobs 1); the reference for the circuits'
+    # verdicts is the independent evaluator of gate_reference on every input (30 and 20 input bits: sampled
+    # where 2^30 is too many, the trap's one failing input included).
+    from gate_reference import breaks_words, run_gates
+    from sortcheck.model.counting import counting_sorter
+    from sortcheck.model.families import merge_exchange
+    from sortcheck.model.lowering import lower_network
+
+    circuit = {"counting": lambda: counting_sorter(6, 5), "trapped": trapped,
+               "lowered": lambda: lower_network(merge_exchange(5), 4, style="xor")}[circuit]()
+    single = check_split(circuit, Sorts(), runner=InProcess(splits=False))
+    with LocalProcesses(2) as local:
+        raced = check_split(circuit, Sorts(), runner=local)
+    assert raced.engine == single.engine == engine and raced.status is single.status
+    assert raced.figures["ran_on"] == "2 local processes (strategies raced)"
+    steps = raced.figures["steps"]
+    assert any(step.startswith(("BDDs of the threshold conditions", "bdd was stopped")) for step in steps)
+    assert any(step.startswith(("lifted to", "lifting stopped", "lift was stopped")) for step in steps)
+    assert raced.counterexample == single.counterexample
+    if raced.counterexample is not None:
+        values = list(raced.counterexample.input)
+        assert breaks_words(Sorts(), values, run_gates(circuit, values), circuit.width)
+    else:
+        rng = np.random.default_rng(7)
+        for values in rng.integers(0, 1 << circuit.width, size=(500, circuit.words)).tolist():
+            assert not breaks_words(Sorts(), values, run_gates(circuit, values), circuit.width)
 
 
 def test_auto_for_gate_circuits_decided_before_threshold_sat_runs_here():

@@ -338,3 +338,21 @@ def test_refusals():
     misfit = engine.refusal(sorter(2, 2, [(0, 1)]), Median(), None)
     assert misfit is not None and "odd" in misfit[1]
     assert engine.check(ComparatorNetwork(2, ((0, 1),)), Sorts(), Budget()).status is Status.UNKNOWN
+
+
+@pytest.mark.parametrize("width", [1, 2, 5, 16, 17, 64, 70])
+def test_words_become_bit_rows_and_back_as_python_integers_say(width):
+    # Reference: Python's integers, bit i of word k of lane j at row k * width + i, bit j % 64 of column j // 64.
+    from sortcheck.engines.gates.word_blocks import ints_to_limbs, limbs_to_rows, rows_to_limbs
+
+    rng = np.random.default_rng(width)
+    words, lanes = 3, 128
+    values = [tuple(int(rng.integers(0, 2 ** 62)) * 2 ** 40 % (1 << width) | int(rng.integers(0, 2)) for _ in
+                    range(words)) for _ in range(lanes)]
+    rows = limbs_to_rows(ints_to_limbs(values, words, width), width)
+    for k in range(words):
+        for i in range(width):
+            expected = sum(((values[j][k] >> i) & 1) << j for j in range(lanes))
+            assert int(rows[k * width + i, 0]) | int(rows[k * width + i, 1]) << 64 == expected
+    back = rows_to_limbs(rows, words, width)
+    assert back.tolist() == ints_to_limbs(values, words, width).tolist()

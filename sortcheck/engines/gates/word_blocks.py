@@ -72,6 +72,41 @@ def transpose_bits(matrix: np.ndarray) -> np.ndarray:
     return matrix
 
 
+#: Words of at most this many bits are moved between limbs and bit rows bit by bit (packbits) rather than by
+#: 64 x 64 transposes, which would move 64 bits per word whatever the width.
+NARROW = 16
+
+
+def _narrow_limbs_to_rows(limbs: np.ndarray, width: int) -> np.ndarray:
+    """:func:`limbs_to_rows` for words of at most :data:`NARROW` bits.
+
+    >>> limbs = np.random.default_rng(0).integers(0, 8, size=(128, 3, 1)).astype(np.uint64)
+    >>> bool((_narrow_limbs_to_rows(limbs, 3) == _transposed_limbs_to_rows(limbs, 3)).all())
+    True
+    """
+    lanes, words, _ = limbs.shape
+    values = np.ascontiguousarray(limbs[:, :, 0].T).astype(np.uint16)  # (words, lanes)
+    shifts = np.arange(width, dtype=np.uint16)[None, :, None]
+    bits = ((values[:, None, :] >> shifts) & np.uint16(1)).astype(np.uint8)  # (words, width, lanes)
+    packed = np.packbits(bits.reshape(words * width, lanes), axis=1, bitorder="little")
+    return packed.view("<u8").astype(np.uint64).reshape(words * width, lanes // 64)
+
+
+def _narrow_rows_to_limbs(rows: np.ndarray, words: int, width: int) -> np.ndarray:
+    """:func:`rows_to_limbs` for words of at most :data:`NARROW` bits.
+
+    >>> rows = np.random.default_rng(0).integers(0, 2 ** 63, size=(6, 2)).astype(np.uint64)
+    >>> bool((_narrow_rows_to_limbs(rows, 2, 3) == _transposed_rows_to_limbs(rows, 2, 3)).all())
+    True
+    """
+    groups = rows.shape[1]
+    raw = np.ascontiguousarray(rows.astype("<u8")).view(np.uint8).reshape(words * width, groups * 8)
+    bits = np.unpackbits(raw, axis=1, bitorder="little").reshape(words, width, groups * 64)
+    shifts = np.arange(width, dtype=np.uint16)[None, :, None]
+    values = (bits.astype(np.uint16) << shifts).sum(axis=1, dtype=np.uint16)  # (words, lanes)
+    return np.ascontiguousarray(values.T).astype(np.uint64).reshape(groups * 64, words, 1)
+
+
 def limbs_to_rows(limbs: np.ndarray, width: int) -> np.ndarray:
     """Bit rows ``(n * width, lanes // 64)`` of words given as limbs ``(lanes, n, L)``; lanes % 64 == 0.
 
@@ -79,6 +114,12 @@ def limbs_to_rows(limbs: np.ndarray, width: int) -> np.ndarray:
     >>> [hex(int(row[0])) for row in rows]
     ['0xffffffffffffffff', '0x0', '0x0', '0xffffffffffffffff']
     """
+    if width <= NARROW:
+        return _narrow_limbs_to_rows(limbs, width)
+    return _transposed_limbs_to_rows(limbs, width)
+
+
+def _transposed_limbs_to_rows(limbs: np.ndarray, width: int) -> np.ndarray:
     lanes, words, count = limbs.shape
     groups = lanes // 64
     # matrices[r, k, l, g]: limb l of word k of lane 64 g + r; transposed, bit 64 l + r of word k for group g
@@ -95,6 +136,12 @@ def rows_to_limbs(rows: np.ndarray, words: int, width: int) -> np.ndarray:
     >>> rows_to_limbs(rows, 3, 3)[0, :, 0].tolist()
     [5, 0, 7]
     """
+    if width <= NARROW:
+        return _narrow_rows_to_limbs(rows, words, width)
+    return _transposed_rows_to_limbs(rows, words, width)
+
+
+def _transposed_rows_to_limbs(rows: np.ndarray, words: int, width: int) -> np.ndarray:
     groups, count = rows.shape[1], limb_count(width)
     bits = np.zeros((words, count * 64, groups), dtype=np.uint64)
     bits[:, :width] = rows.reshape(words, width, groups)

@@ -423,6 +423,8 @@ def _staged(engine, netlist: Netlist, prop: Property, budget: Budget, options: O
         if isinstance(staged, Race):
             jobs = _jobs(staged.engine, netlist, prop, staged.pieces, budget, options)
             staged = staged.finish(runner.run(staged.engine, jobs, budget, complete=False, race=True))
+            if isinstance(staged, Verdict):
+                staged = _with_figures(staged, {"ran_on": f"{runner.ran_on} (strategies raced)", "pieces": 1})
         else:
             staged = staged.finish(run_pieces(staged.engine, netlist, prop, staged.pieces, budget, options, runner))
     return staged.with_choice(staged.engine_reason or reason, time.perf_counter() - started)
