@@ -41,7 +41,7 @@ from sortcheck.report import (
 )
 from sortcheck.report.results import interrupted_result
 from sortcheck.report.equivalence_report import equivalence_exit, equivalence_json, format_equivalence
-from sortcheck.report.certify import certify_file_result
+from sortcheck.certify.check import certify_file_result
 from sortcheck.report.export import FORMATS as EXPORT_FORMATS, export_text
 from sortcheck.report.junit import junit_report
 from sortcheck.report.progress import for_file as progress_line

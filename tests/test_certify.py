@@ -27,9 +27,9 @@ from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.load import write_netlist
 from sortcheck.model import ComparatorNetwork, Sorts
 from sortcheck.model.families import build_family
-from sortcheck.report.certify import certify_result
-from sortcheck.report.drup import ProofFormatError, check_proof, parse_dimacs
-from sortcheck.report.reevaluate import recheck_space, relations_sort
+from sortcheck.certify.check import certify_result
+from sortcheck.certify.drup import ProofFormatError, check_proof, parse_dimacs
+from sortcheck.certify.reevaluate import recheck_space, relations_sort
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
 
@@ -221,7 +221,7 @@ def test_cli_certifies_merge_exchange_networks_by_drup(tmp_path, solver_only_sat
         assert result["verdict"] == "proved" and result["certified"] is True
         certificate = result["certificate"]
         assert certificate["method"] == "drup"
-        assert "sortcheck drup (report/drup.py)" in certificate["checked_by"]
+        assert "sortcheck drup (certify/drup.py)" in certificate["checked_by"]
         folder = Path(certificate["directory"])
         cnfs = sorted(folder.glob("*.cnf"))
         assert cnfs and len(cnfs) == len(list(folder.glob("*.drup")))

@@ -27,8 +27,8 @@ from sortcheck.model import PartialSort, Selects, Sorts
 from sortcheck.model.counting import counting_sorter
 from sortcheck.model.families import merge_exchange, odd_even_transposition
 from sortcheck.model.lowering import lower_network
-from sortcheck.report.certify import certify_result
-from sortcheck.report.drup import check_proof, parse_dimacs
+from sortcheck.certify.check import certify_result
+from sortcheck.certify.drup import check_proof, parse_dimacs
 
 CORPUS = Path(__file__).resolve().parent.parent / "corpus"
 
@@ -69,7 +69,7 @@ def test_counting_sorters_proved_by_sat_are_certified_with_every_file_written(tm
         assert result["verdict"] == "proved" and result["certified"] is True, result["certificate"]
         certificate = result["certificate"]
         assert certificate["method"] == "drup"
-        assert "sortcheck drup (report/drup.py)" in certificate["checked_by"]
+        assert "sortcheck drup (certify/drup.py)" in certificate["checked_by"]
         assert f"cover all {thresholds} thresholds" in certificate["scope"]
         folder = Path(certificate["directory"])
         cnfs = sorted(folder.glob("*.cnf"))

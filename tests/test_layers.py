@@ -6,7 +6,7 @@ import ast
 from pathlib import Path
 
 PACKAGE = Path(__file__).resolve().parent.parent / "sortcheck"
-STAGES = ["errors", "model", "load", "engines", "explain", "report", "cli"]
+STAGES = ["errors", "model", "load", "engines", "explain", "report", "certify", "cli"]
 
 
 def stage_of(module: str) -> int | None:

@@ -42,7 +42,7 @@ ENGINES: dict[str, Engine] = {
 #: 2^24 inputs took 21 s where threshold SAT took 2.5 s (counting sorter of 8 x 3 bits, 2 loaded cores).
 PIPELINE_EXHAUSTIVE_BITS = 20
 
-#: What ``auto`` runs for gate circuits: simulation, lifting, exhaustive simulation or threshold SAT.
+#: What ``auto`` runs for gate circuits: simulation, lifting, BDDs, exhaustive simulation or threshold SAT.
 GATE_PIPELINE = GatePipeline(exhaustive_bits=PIPELINE_EXHAUSTIVE_BITS)
 
 #: Why ``auto`` takes each engine, in words for the report.
@@ -50,10 +50,10 @@ CHOICE_REASONS = {
     "enumerate": "it evaluates every 0-1 input the property speaks about, which covers all inputs (0-1 principle)",
     "sat": ("the network is beyond enumeration; the SAT engine splits it along its structure and proves each part "
             "(exhaustively when small, else with a SAT solver), which covers all inputs (0-1 principle)"),
-    "lift": ("the gate circuit is proved, block by block, to be a comparator network, which the comparator engines "
-             "then check"),
-    "auto": ("auto for gate circuits: simulation first, then lifting to a comparator network, then exhaustive "
-             "simulation of small inputs or threshold SAT"),
+    "lift": ("the gate circuit is proved equal to a comparator network (by SAT sweeping, or block by block), which "
+             "the comparator engines then check"),
+    "auto": ("auto for gate circuits: simulation first, then lifting to a comparator network, BDDs of the threshold "
+             "conditions for short words, exhaustive simulation of small inputs, threshold SAT"),
     "simulate": (f"it simulates the gate circuit on every input when there are at most 2^{EXHAUSTIVE_GATE_BITS}, "
                  "and on corner-case and random inputs otherwise (which can only refute)"),
     "smt": ("it proves the property with z3 on words: comparator networks at the chosen width, without the 0-1 "

@@ -14,7 +14,7 @@ from pysat.solvers import Solver
 from sortcheck.engines.networks.cnf import dimacs, plain_cnf
 from sortcheck.model import Sorts
 from sortcheck.model.families import build_family
-from sortcheck.report.drup import check_proof, parse_dimacs, parse_proof
+from sortcheck.certify.drup import check_proof, parse_dimacs, parse_proof
 
 CASES = [("merge-exchange", 24), ("bitonic", 32), ("pairwise", 32), ("merge-exchange", 40)]
 

@@ -4,7 +4,7 @@ For counting sorters, the table gives the engine's seconds without certificate
 material (one incremental solver, assumptions) and with it (each question a
 CNF of its own, glucose 4 logging a DRUP proof), their ratio, the DRUP lines
 recorded and the seconds of checking the whole certificate again
-(:func:`sortcheck.report.certify.certify_result`: our DRUP checker, the
+(:func:`sortcheck.certify.check.certify_result`: our DRUP checker, the
 re-encoding and the coverage).  Run by hand:
 ``python tests/benchmarks/bench_gate_certify.py``.
 """
@@ -20,7 +20,7 @@ from sortcheck.engines.gates.threshold.sat import GateSatEngine
 from sortcheck.load import write_netlist
 from sortcheck.model import Sorts
 from sortcheck.model.counting import counting_sorter
-from sortcheck.report.certify import certify_result
+from sortcheck.certify.check import certify_result
 
 CASES = [(4, 2), (8, 2), (16, 2), (4, 3), (8, 3), (4, 4), (5, 5)]
 

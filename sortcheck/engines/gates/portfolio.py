@@ -13,7 +13,9 @@ its own, in this order:
 ``bdd``
     the threshold conditions as BDDs (:mod:`sortcheck.engines.gates.bdd`),
     for circuits of short words (at most ``bdd_width`` bits: counting
-    sorters and other circuits with no comparators);
+    sorters and other circuits with no comparators); left out when
+    certificates are asked for, since threshold SAT then proves the same
+    circuits with DRUP proofs;
 ``exhaustive``
     every input simulated, when the circuit has at most ``exhaustive_bits``
     input bits;
@@ -116,7 +118,8 @@ class GatePipeline:
         names = []
         if self.lift.refusal(circuit, prop, options) is None:
             names.append("lift")
-        if circuit.width <= self.bdd_width and self.bdd.refusal(circuit, prop, options) is None:
+        if (circuit.width <= self.bdd_width and not options.certify  # threshold SAT certifies what BDDs would prove
+                and self.bdd.refusal(circuit, prop, options) is None):
             names.append("bdd")
         if sum(circuit.widths) <= self.exhaustive_bits:
             names.append("exhaustive")

@@ -55,11 +55,11 @@ def _describe_lifting(lifting: Lifting, circuit: GateCircuit, prop: Property) ->
     width, n = circuit.width, circuit.words
     if lifting.method == "sweeping":
         sweep = lifting.figures.get("sweep", {})
-        calls = sweep.get("sat_calls", 0)
+        calls = sweep.get("sat_calls", 0) + sweep.get("window_calls", 0)
         text = (f"lifted to a comparator network of {n} channels and {len(lifting.blocks)} comparators "
                 f"({lifting.order.describe()}), found from what the circuit's signals compute and proved equal to "
                 f"the circuit on every input of {n} words of {width} bits by SAT sweeping ({sweep.get('cut_points', 0)} "
-                f"cut points proved, {calls} SAT calls)")
+                f"cut points proved, {calls} SAT calls; per comparator in figures.blocks)")
     else:
         text = (f"lifted to a comparator network of {n} channels: {len(lifting.blocks)} blocks of 2 x {width} bits "
                 f"proved to be min/max ({lifting.order.describe()}) by SAT")

@@ -2,7 +2,7 @@
 
 The gate-circuit ``sat`` engine records one CNF and DRUP proof per proved
 question (:mod:`sortcheck.engines.gates.threshold.certificates`).  Beside the proof
-checks of :mod:`sortcheck.report.certify`, a certificate of a gate circuit
+checks of :mod:`sortcheck.certify.check`, a certificate of a gate circuit
 must pass two checks made here:
 
 * **encoding**: the circuit read again from its file is encoded again, and
@@ -31,7 +31,7 @@ from sortcheck.engines.base import UnsatCall
 from sortcheck.engines.gates.threshold.certificates import MODES, claim_clauses
 from sortcheck.engines.gates.threshold.spec import threshold_question
 from sortcheck.model import GateCircuit, PartialSort, Property
-from sortcheck.report.drup import ProofFormatError, parse_dimacs
+from sortcheck.certify.drup import ProofFormatError, parse_dimacs
 
 TRUSTED = ("the threshold decomposition and the CNF encoding of the circuit and of the threshold conditions "
            "(encodings/gate-circuit-cnf.md, encodings/gate-threshold-conditions.md)")

@@ -5,16 +5,16 @@ For each checked file, ``certify_result`` writes a directory with a
 rests on, the CNF (DIMACS, variables named in comments) and the solver's
 DRUP proof.  It then checks everything again without the engine:
 
-* each DRUP proof with :mod:`sortcheck.report.drup`, and with ``drat-trim``
+* each DRUP proof with :mod:`sortcheck.certify.drup`, and with ``drat-trim``
   as well when that program is on the ``PATH``;
 * each enumerated set of 0-1 vectors by evaluating it again with
-  :mod:`sortcheck.report.reevaluate` (and its digest recomputed from its
+  :mod:`sortcheck.certify.reevaluate` (and its digest recomputed from its
   description); a second run into the same directory also compares the
   digests with the ones recorded before;
 * that the parts' claims add up to the whole network (the sat engine's split);
 * for a gate circuit, that each CNF is the encoding of its claim for the
   circuit read again from its file, and that the claims cover every
-  threshold (:mod:`sortcheck.report.certify_gates`);
+  threshold (:mod:`sortcheck.certify.gates`);
 * order relations by deriving them again; a counterexample by running the
   netlist on it and judging the output with the reference semantics.
 
@@ -45,10 +45,10 @@ from sortcheck.engines.runners.processes import run_program
 from sortcheck.load import read_netlist
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist
 from sortcheck.model.semantics import violation
-from sortcheck.report.certify_gates import TRUSTED as GATE_TRUSTED, gate_problems
-from sortcheck.report.drup import ProofFormatError, check_proof
+from sortcheck.certify.gates import TRUSTED as GATE_TRUSTED, gate_problems
+from sortcheck.certify.drup import ProofFormatError, check_proof
 from sortcheck.report.results import FileResult
-from sortcheck.report.reevaluate import composition_problems, recheck_claim, recheck_space, relations_sort
+from sortcheck.certify.reevaluate import composition_problems, recheck_claim, recheck_space, relations_sort
 
 MANIFEST = "certificate.json"
 CERTIFICATE_VERSION = 1
@@ -64,8 +64,8 @@ DRAT_TRIM_SECONDS = 120.0
 #: minutes); a proof not checked in time leaves the verdict uncertified.
 CHECK_SECONDS = 900.0
 
-OUR_CHECKER = "sortcheck drup (report/drup.py)"
-GATE_ENCODING = "sortcheck re-encoding of the circuit and threshold coverage (report/certify_gates.py)"
+OUR_CHECKER = "sortcheck drup (certify/drup.py)"
+GATE_ENCODING = "sortcheck re-encoding of the circuit and threshold coverage (certify/gates.py)"
 
 #: Why proved verdicts of these engines are not certified (they record no certificate material).
 UNCERTIFIED = {
@@ -75,7 +75,7 @@ UNCERTIFIED = {
     "smt": "smt verdicts are not certified in this version: the SMT solver's proof is not recorded",
     "bdd": "bdd verdicts are not certified in this version: a BDD computation leaves no proof to check again",
 }
-OUR_EVALUATOR = "sortcheck re-evaluation (report/reevaluate.py)"
+OUR_EVALUATOR = "sortcheck re-evaluation (certify/reevaluate.py)"
 
 
 def directory_for(root: Path, path: str) -> Path:
@@ -194,7 +194,7 @@ def _check_structure(material: CertificateMaterial, network: ComparatorNetwork, 
     problems = composition_problems(network.size, network.comparators, network.channels, claims)
     checks.failures += [f"composition: {problem}" for problem in problems]
     if not problems:
-        checks.by("sortcheck composition of parts (report/reevaluate.py)")
+        checks.by("sortcheck composition of parts (certify/reevaluate.py)")
 
 
 def _recheck_counterexample(netlist: Netlist, verdict: Verdict, checks: _Checks) -> None:
@@ -308,7 +308,7 @@ def certify_result(netlist: Netlist | None, path: str, verdict: Verdict | None, 
         if material.relations is not None:
             manifest["relations"] = material.relations
             if relations_sort(netlist.channels, netlist.comparators, material.relations["descending"]):
-                checks.by("sortcheck order relations derived again (report/reevaluate.py)")
+                checks.by("sortcheck order relations derived again (certify/reevaluate.py)")
             else:
                 checks.failures.append("the order relations derived again do not show the outputs sorted")
         if not (material.calls or material.enumerated or material.relations):
