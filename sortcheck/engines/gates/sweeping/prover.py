@@ -141,7 +141,7 @@ class EquivalenceProver:
         every free leaf is an input; otherwise (or when the window is larger than
         :data:`WINDOW_NODES`) the question goes to the whole cones.
         """
-        nodes, leaves = cone(self.graph, (left, right), self.cut - {left >> 1, right >> 1})
+        nodes, leaves = cone(self.graph, (left, right), _CutBut(self.cut, (left >> 1, right >> 1)))
         if len(nodes) > WINDOW_NODES:
             return None
         numbers: dict[int, int] = {0: 1}
@@ -228,3 +228,13 @@ class EquivalenceProver:
 def _numbered(literal: int, numbers: dict[int, int]) -> int:
     variable = numbers[literal >> 1]
     return -variable if literal & 1 else variable
+
+
+class _CutBut:
+    """The nodes of ``cut`` but ``roots`` (a view: the cut is not copied for every window)."""
+
+    def __init__(self, cut: set[int] | frozenset[int], roots: tuple[int, ...]):
+        self.cut, self.roots = cut, roots
+
+    def __contains__(self, node: int) -> bool:
+        return node in self.cut and node not in self.roots
