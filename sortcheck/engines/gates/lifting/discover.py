@@ -42,33 +42,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-import numpy as np
-
 from sortcheck.engines.base import Budget
 from sortcheck.engines.gates.lifting.blocks import BlockOrder
-from sortcheck.engines.gates.sweeping.aig import AndInverterGraph
+from sortcheck.engines.gates.sweeping.aig import AndInverterGraph, circuit_graph
 from sortcheck.engines.gates.sweeping.signatures import PATTERNS, SEED, input_signatures
-from sortcheck.model import GateCircuit, bit_name
-from sortcheck.model.circuit import Signal
+from sortcheck.model import GateCircuit
 
 #: Output bits of a pair found in the circuit that make its evidence strong when its comparison is not found.
 MIN_BIT_EVIDENCE = 2
 #: A signature counts as evidence only when it is 1, and 0, on at least this many patterns.
 MIN_EVIDENCE_PATTERNS = 16
-
-
-def circuit_graph(circuit: GateCircuit, signatures: list[int], patterns: int = PATTERNS
-                  ) -> tuple[AndInverterGraph, dict[Signal, int]]:
-    """``circuit`` as an and-inverter graph on inputs with these signatures (on ``patterns`` patterns), and
-    every signal's literal."""
-    graph = AndInverterGraph(patterns=patterns)
-    literals: dict[Signal, int] = {0: 0, 1: 1}
-    names = [bit_name(word.name, i) for word in circuit.inputs for i in range(word.width)]
-    for name, signature in zip(names, signatures):
-        literals[name] = graph.add_input(signature)
-    for gate in circuit.gate_order:
-        literals[gate.out] = graph.op(gate.op, [literals[source] for source in gate.inputs])
-    return graph, literals
 
 
 @dataclass(frozen=True)

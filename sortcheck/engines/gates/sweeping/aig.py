@@ -27,6 +27,9 @@ from __future__ import annotations
 
 from typing import Iterable, Sequence
 
+from sortcheck.model import GateCircuit, bit_name
+from sortcheck.model.circuit import Signal
+
 FALSE, TRUE = 0, 1
 
 
@@ -240,3 +243,17 @@ def cone(graph: AndInverterGraph, roots: Iterable[int], stop: set[int] | frozens
     inner.sort()
     leaves.sort()
     return inner, leaves
+
+
+def circuit_graph(circuit: GateCircuit, signatures: list[int], patterns: int
+                  ) -> tuple[AndInverterGraph, dict[Signal, int]]:
+    """``circuit`` as an and-inverter graph on inputs with these signatures (on ``patterns`` patterns), and
+    every signal's literal."""
+    graph = AndInverterGraph(patterns=patterns)
+    literals: dict[Signal, int] = {0: 0, 1: 1}
+    names = [bit_name(word.name, i) for word in circuit.inputs for i in range(word.width)]
+    for name, signature in zip(names, signatures):
+        literals[name] = graph.add_input(signature)
+    for gate in circuit.gate_order:
+        literals[gate.out] = graph.op(gate.op, [literals[source] for source in gate.inputs])
+    return graph, literals

@@ -28,11 +28,10 @@ from functools import cached_property
 from typing import Any
 
 from sortcheck.engines.base import Budget
-from sortcheck.engines.gates.sweeping.aig import AndInverterGraph
+from sortcheck.engines.gates.sweeping.aig import AndInverterGraph, circuit_graph
 from sortcheck.engines.gates.sweeping.signatures import PATTERNS, SEED, input_signatures, uniform_signatures
 from sortcheck.engines.gates.sweeping.sweep import sweep
 from sortcheck.model import GateCircuit
-from sortcheck.model.circuit import Signal, bit_name
 
 
 
@@ -48,13 +47,7 @@ class OutputsAnswer:
 
 def _graph(circuit: GateCircuit, signatures: list[int]) -> tuple[AndInverterGraph, list[int]]:
     """The circuit as an and-inverter graph on inputs of these signatures, and the literal of every output bit."""
-    graph = AndInverterGraph(patterns=PATTERNS)
-    literals: dict[Signal, int] = {0: 0, 1: 1}
-    names = [bit_name(word.name, i) for word in circuit.inputs for i in range(word.width)]
-    for name, signature in zip(names, signatures):
-        literals[name] = graph.add_input(signature)
-    for gate in circuit.gate_order:
-        literals[gate.out] = graph.op(gate.op, [literals[source] for source in gate.inputs])
+    graph, literals = circuit_graph(circuit, signatures, PATTERNS)
     return graph, [literals[bit] for word in circuit.outputs for bit in word.bits]
 
 
