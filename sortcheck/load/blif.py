@@ -222,12 +222,51 @@ def _add_row(cover: _Cover, tokens: list[str], source: str, where: str) -> None:
     cover.patterns.append(pattern)
 
 
-def _check_references(model: _Model, source: str) -> None:
+def _drop_dangling(model: _Model, source: str) -> None:
+    """Leave out the covers that read, directly or not, a signal nothing defines, when no output needs them.
+
+    Yosys's ``write_blif`` (without ``-noalias``) writes a copy for every
+    public wire that aliases another, also for wires whose driver ABC
+    absorbed: such a copy reads an undefined signal and drives nothing the
+    outputs read.  An undefined signal that an output needs is an error.
+    """
     defined = {name for name, _ in model.inputs} | {cover.out for cover in model.covers}
-    uses = [(name, cover.line) for cover in model.covers for name in cover.inputs] + model.outputs
-    for name, number in uses:
+    if all(name in defined for cover in model.covers for name in cover.inputs):
+        for name, number in model.outputs:
+            if name not in defined:
+                raise NetlistError(f"undefined signal {name!r}", source, f"line {number}")
+        return
+    by_out = {cover.out: cover for cover in model.covers}
+    needed: set[str] = set()
+    stack = [name for name, _ in model.outputs]
+    while stack:
+        name = stack.pop()
+        if name in needed:
+            continue
+        needed.add(name)
+        cover = by_out.get(name)
+        if cover is not None:
+            stack.extend(cover.inputs)
+    uses = [(name, cover.line) for cover in model.covers if cover.out in needed for name in cover.inputs]
+    for name, number in uses + model.outputs:
         if name not in defined:
             raise NetlistError(f"undefined signal {name!r}", source, f"line {number}")
+    readers: dict[str, list[_Cover]] = {}
+    for cover in model.covers:
+        for name in cover.inputs:
+            readers.setdefault(name, []).append(cover)
+    dangling: set[str] = set()
+    stack = [name for cover in model.covers for name in cover.inputs if name not in defined]
+    while stack:
+        for cover in readers.get(stack.pop(), ()):
+            if cover.out not in dangling:
+                dangling.add(cover.out)
+                stack.append(cover.out)
+    model.covers = [cover for cover in model.covers if cover.out not in dangling]
+
+
+def _check_references(model: _Model, source: str) -> None:
+    _drop_dangling(model, source)
     graph = adjacency((name, cover.out) for cover in model.covers for name in cover.inputs)
     if topological_order(graph) is not None:
         return
