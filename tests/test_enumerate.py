@@ -14,7 +14,7 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 
-from sortcheck.engines import Budget, Status, StopReason, check
+from sortcheck.engines import Budget, Options, Status, StopReason, check
 from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, at_least, failure_mask
 from sortcheck.engines.networks.enumeration import EnumerateEngine
 from sortcheck.model import ComparatorNetwork, Merges, Sorts
@@ -159,26 +159,42 @@ def test_a_timeout_gives_unknown_with_what_was_covered():
 
 
 def test_beyond_the_size_limit_the_engine_refuses_and_points_to_sat():
-    # The first layer of merge exchange 11 has 4 disjoint comparators: 3^4 * 2^3 = 648 vectors remain.
-    engine = EnumerateEngine(max_vectors=2 ** 9)
-    verdict = engine.check(build_family("merge-exchange", 11), Sorts(), Budget())
+    # One layer of 4 disjoint comparators on 11 channels: each pair leaves 3 of its 4 0-1 values, the 3 other
+    # channels 2, so 3^4 * 2^3 = 648 vectors remain (counted by hand), and nothing reduces them further.
+    layer = ComparatorNetwork(11, ((0, 1), (2, 3), (4, 5), (6, 7)))
+    verdict = EnumerateEngine(max_vectors=2 ** 9).check(layer, Sorts(), Budget())
     assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.SIZE_LIMIT
-    assert "2^11" in verdict.scope and "648" in verdict.scope and "2^9" in verdict.scope and "SAT" in verdict.scope
-    assert EnumerateEngine(max_vectors=2 ** 10).check(build_family("merge-exchange", 11), Sorts(),
-                                                      Budget()).status == Status.PROVED
+    assert "2^11" in verdict.scope and "648 vectors left after the reduction" in verdict.scope
+    assert "2^9" in verdict.scope and "SAT" in verdict.scope
+    assert EnumerateEngine(max_vectors=2 ** 10).check(layer, Sorts(), Budget()).status == Status.REFUTED
+    # Merge exchange 11 (a sorter: Knuth, TAOCP vol. 3, 5.3.4): its first layer alone would leave 648 vectors,
+    # but the reduction through the whole network leaves fewer than 2^9, so the same limit admits it.
+    verdict = EnumerateEngine(max_vectors=2 ** 9).check(build_family("merge-exchange", 11), Sorts(), Budget())
+    assert verdict.status == Status.PROVED and verdict.figures["vectors_after_reduction"] <= 2 ** 9
     # A merge check needs only (m+1)(n-m+1) inputs, so the same limit admits many more channels.
     engine = EnumerateEngine(max_vectors=2 ** 10)
     assert engine.check(build_family("merge-exchange", 40), Merges(split=20), Budget()).status == Status.PROVED
 
 
+def test_the_limit_looks_at_what_the_reduction_leaves():
+    # Merge exchange 36: its first layer's bound is 21,743,271,936 vectors, beyond the default 2^34, but the
+    # reduction leaves 144; counting failing inputs then counts none (it sorts: Knuth, TAOCP vol. 3, 5.3.4).
+    network = build_family("merge-exchange", 36)
+    verdict = check(network, Sorts(), engine="enumerate", options=Options(count=True))
+    assert verdict.status == Status.PROVED and verdict.figures["failing_inputs"] == 0
+    assert verdict.figures["vectors_after_reduction"] == 144
+
+
 def test_default_limit_refuses_large_networks_without_running():
-    verdict = check(build_family("merge-exchange", 64), Sorts(), engine="enumerate")
+    # 32 disjoint comparators on 64 channels leave 3^32 vectors, beyond 2^34 whatever the reduction does.
+    layer = ComparatorNetwork(64, tuple((2 * k, 2 * k + 1) for k in range(32)))
+    verdict = check(layer, Sorts(), engine="enumerate")
     assert verdict.status == Status.UNKNOWN and verdict.stop == StopReason.SIZE_LIMIT
     assert verdict.seconds < 5
 
 
 def test_auto_hands_networks_beyond_enumeration_to_sat():
-    verdict = check(build_family("merge-exchange", 64), Sorts())
+    verdict = check(build_family("merge-exchange", 128), Sorts())
     assert verdict.status == Status.PROVED and verdict.engine == "sat"
     assert "sat" in verdict.engine_reason
 

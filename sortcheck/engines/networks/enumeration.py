@@ -154,9 +154,15 @@ class EnumerateEngine:
         if isinstance(prop, PartialSort):
             return StopReason.UNSUPPORTED, "partial-sort applies to gate circuits only"
         needed = vectors_needed(netlist.channels, prop)
-        bound = vectors_bound(netlist, prop, self.reduction and self.backend != "plain")
+        reduces = self.reduction and self.backend != "plain"
+        bound = vectors_bound(netlist, prop, reduces)
+        after = "" if bound == needed else f" (up to {bound:,} vectors after the first layer's reduction)"
+        if bound > self.max_vectors and reduces and not isinstance(prop, Merges) and netlist.channels <= MAX_CHANNELS:
+            # The first layer's bound is loose: the reduction itself (its sets are capped in size, so this is
+            # quick) says how many vectors are really left.
+            bound = reduced_layout(netlist, prop, True)[1].vectors
+            after = f" ({bound:,} vectors left after the reduction)"
         if bound > self.max_vectors:
-            after = "" if bound == needed else f" (up to {bound:,} vectors after the first layer's reduction)"
             return StopReason.SIZE_LIMIT, (
                 f"{netlist.channels} channels need {_limit_text(needed)} 0-1 inputs{after}, beyond enumerate's "
                 f"limit of {_limit_text(self.max_vectors)}; networks this large need the SAT engine (--engine sat)")
