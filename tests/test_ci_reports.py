@@ -45,7 +45,7 @@ def mixed(tmp_path):
     network = build_family("merge-exchange", 12)
     write_netlist(ComparatorNetwork(12, network.comparators[:-1] + ((11, 0),), "d-refuted"),
                   folder / "broken" / "d-refuted.json")
-    write_netlist(build_family("merge-exchange", 64), folder / "e-undecided.json")  # beyond enumeration
+    write_netlist(build_family("merge-exchange", 128), folder / "e-undecided.json")  # beyond enumeration
     (folder / "f-invalid.json").write_text(INVALID, encoding="utf-8")
     return folder
 
@@ -105,7 +105,7 @@ def test_pyproject_table_gives_paths_and_per_path_settings(tmp_path, monkeypatch
     (tmp_path / "nets").mkdir()
     shutil.copy(ROOT / "corpus" / "merge-exchange-16.json", tmp_path / "nets" / "sorter.json")
     shutil.copy(ROOT / "corpus" / "merge-exchange-16.json", tmp_path / "as-selector.json")
-    write_netlist(build_family("merge-exchange", 64), tmp_path / "wide.json")
+    write_netlist(build_family("merge-exchange", 128), tmp_path / "wide.json")
     (tmp_path / "pyproject.toml").write_text(
         '[tool.sortcheck]\n'
         'paths = ["nets", {path = "as-selector.json", property = "selects:3:sorted"},\n'

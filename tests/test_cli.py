@@ -271,8 +271,8 @@ def test_tiny_timeout_on_a_large_network_is_unknown_and_fast(tmp_path):
 
 
 def test_network_beyond_the_size_limit_is_unknown_exit_3(tmp_path):
-    network = tmp_path / "merge-exchange-64.json"
-    assert run("build", "merge-exchange", "64", "--output", str(network)).status == 0
+    network = tmp_path / "merge-exchange-128.json"  # more channels than enumerate takes
+    assert run("build", "merge-exchange", "128", "--output", str(network)).status == 0
     started = time.perf_counter()
     result = run("check", str(network), "--format", "json", "--engine", "enumerate")
     assert result.status == 3
