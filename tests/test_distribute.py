@@ -492,7 +492,7 @@ def test_auto_for_gate_circuits_races_lifting_and_bdds_on_workers(circuit, engin
     from sortcheck.model.families import merge_exchange
     from sortcheck.model.lowering import lower_network
 
-    circuit = {"counting": lambda: counting_sorter(6, 5), "trapped": trapped,
+    circuit = {"counting": lambda: counting_sorter(6, 3), "trapped": trapped,
                "lowered": lambda: lower_network(merge_exchange(5), 4, style="xor")}[circuit]()
     single = check_split(circuit, Sorts(), runner=InProcess(splits=False))
     with LocalProcesses(2) as local:
