@@ -28,7 +28,6 @@ holding up the rest.  ``encodings/gate-sat-sweeping.md`` gives the clauses.
 
 from __future__ import annotations
 
-import threading
 from dataclasses import dataclass, field
 from typing import Iterable, Sequence
 
@@ -36,6 +35,7 @@ from pysat.solvers import Solver
 
 from sortcheck.engines.base import Budget
 from sortcheck.engines.gates.sweeping.aig import AndInverterGraph, cone
+from sortcheck.engines.solving import solve_interruptibly
 
 #: Conflicts allowed to one SAT call (a batch, or one pair).
 CONFLICTS = 100_000
@@ -166,7 +166,7 @@ class EquivalenceProver:
         self.figures.window_calls += 1
         with Solver(name=SOLVER, bootstrap_with=clauses) as solver:
             solver.conf_budget(self.conflicts)
-            found = solver.solve_limited(assumptions=[difference])
+            found = solve_interruptibly(solver, [difference], self.budget.remaining())
             model = solver.get_model() if found else None
         if found is False:
             return Answer("equal")
@@ -210,19 +210,8 @@ class EquivalenceProver:
         """The solver's answer; None when the conflict limit or the budget ran out first."""
         if self.budget.expired():
             return None
-        solver = self._solver
-        solver.conf_budget(self.conflicts)
-        remaining = self.budget.remaining()
-        if remaining is None:
-            return solver.solve_limited(assumptions=assumptions)
-        timer = threading.Timer(remaining, solver.interrupt)
-        timer.start()
-        try:
-            found = solver.solve_limited(assumptions=assumptions, expect_interrupt=True)
-        finally:
-            timer.cancel()
-        solver.clear_interrupt()
-        return found
+        self._solver.conf_budget(self.conflicts)
+        return solve_interruptibly(self._solver, assumptions, self.budget.remaining())
 
 
 def _numbered(literal: int, numbers: dict[int, int]) -> int:
