@@ -161,7 +161,8 @@ def equivalent(first: Netlist, second: Netlist, budget: Budget, signed: bool = F
         if answer.status is not Status.REFUTED or _differs_as_words(first, second, answer.input, signed):
             return _as_lifted(first, second, answer, lifted, signed, started, lowered)
     if not budget.expired():
-        swept = _swept(first, second, budget, started, CircuitPair.of(first, second))  # type: ignore[arg-type]
+        fresh = CircuitPair.of(first, second) if alike else pair  # a first sweep grew the graphs: start anew
+        swept = _swept(first, second, budget, started, fresh)  # type: ignore[arg-type]
         if swept is not None:
             return swept
     return _miter(first, second, budget, started)  # type: ignore[arg-type]

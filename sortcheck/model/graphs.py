@@ -30,8 +30,9 @@ def adjacency(edges: Iterable[tuple[Hashable, Hashable]], nodes: Iterable[Hashab
     return graph
 
 
-def topological_order(graph: Graph) -> list | None:
-    """Every node after its predecessors (ties in the graph's node order), or None when there is a cycle."""
+def _kahn(graph: Graph) -> tuple[list, int]:
+    """The nodes Kahn's algorithm orders (every one after its predecessors, ties in the graph's node order:
+    all but those on a cycle or reached from one), and how many nodes the graph has."""
     indegree = dict.fromkeys(graph, 0)
     for successors in graph.values():
         for node in successors:
@@ -45,24 +46,13 @@ def topological_order(graph: Graph) -> list | None:
             indegree[successor] -= 1
             if indegree[successor] == 0:
                 ready.append(successor)
-    return order if len(order) == len(indegree) else None
+    return order, len(indegree)
 
 
-def _ordered(graph: Graph) -> set:
-    """The nodes Kahn's algorithm orders: those on no cycle and reached from none."""
-    indegree = dict.fromkeys(graph, 0)
-    for successors in graph.values():
-        for node in successors:
-            indegree[node] = indegree.get(node, 0) + 1
-    ready = [node for node, count in indegree.items() if count == 0]
-    ordered = set(ready)
-    while ready:
-        for successor in graph.get(ready.pop(), ()):
-            indegree[successor] -= 1
-            if indegree[successor] == 0:
-                ordered.add(successor)
-                ready.append(successor)
-    return ordered
+def topological_order(graph: Graph) -> list | None:
+    """Every node after its predecessors (ties in the graph's node order), or None when there is a cycle."""
+    order, nodes = _kahn(graph)
+    return order if len(order) == nodes else None
 
 
 def find_cycle(graph: Graph) -> list:
@@ -72,7 +62,7 @@ def find_cycle(graph: Graph) -> list:
     cannot be ordered either; walking backwards along such predecessors must
     come back to a node seen before, and from there on the walk is a cycle.
     """
-    ordered = _ordered(graph)
+    ordered = set(_kahn(graph)[0])
     predecessors: dict = {}
     for node, successors in graph.items():
         for successor in successors:

@@ -109,7 +109,7 @@ class NetworkDiscovery:
         self.words: list[tuple[int, ...]] = [tuple(inputs[k * self.width:(k + 1) * self.width])
                                              for k in range(circuit.words)]
         self.live: list[int] = list(range(circuit.words))
-        self._index = self._signature_index()
+        self._index: dict[int, int] = {}  # made by run(), after any patterns learnt since
         self._evidence: dict[tuple[int, int], Evidence | None] = {}
         self._word_values: dict[int, list[int]] = {}
         #: A guard against a search that keeps finding comparators: more than every pair of words meeting
