@@ -28,7 +28,7 @@ from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
 from sortcheck.load import dump_netlist, parse_property, read_netlist
-from sortcheck.load.config import CheckRequest, expand, read_project_config
+from sortcheck.load.config import CheckRequest, expand, is_verilog, parameter_value, read_project_config, verilog_design
 
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, check_fits
 from sortcheck.model.circuit_builds import build_circuit
@@ -90,6 +90,14 @@ def _size(text: str) -> int:
     return int(text)
 
 
+def _add_design_options(parser: argparse.ArgumentParser) -> None:
+    """``--top`` and ``--param``, for commands that read Verilog."""
+    parser.add_argument("--top", metavar="MODULE", help="Verilog: the top module (default: the one module no other "
+                        "instantiates)")
+    parser.add_argument("--param", action="append", default=[], metavar="NAME=VALUE",
+                        help="Verilog: a parameter of the top module (repeatable)")
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="sortcheck", description="Prove that comparator networks and sorting circuits "
                      "sort, merge, select or take the median, or find an input that breaks them.")
@@ -98,8 +106,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     check = commands.add_parser("check", help="prove a property of netlists or find a counterexample")
     check.add_argument("paths", nargs="*", metavar="PATH",
-                       help="netlist files or directories (every *.json below); none: the [tool.sortcheck] "
-                            "table of ./pyproject.toml")
+                       help="netlist files or directories (every *.json, *.aag, *.aig, *.blif below), or the "
+                            "Verilog files (*.v, *.sv) of one design; none: the [tool.sortcheck] table of "
+                            "./pyproject.toml")
     check.add_argument("--property", metavar="SPEC",
                        help="property to check: sorts, sorts:desc, merges:M, selects:T[:sorted], median, "
                             "partial-sort:K[:stable], or a JSON object (default: the file's own, else sorts)")
@@ -107,10 +116,12 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
                        help="time budget per file; a check that runs out is 'unknown' (exit 3)")
     check.add_argument("--words", type=_words, metavar="N",
-                       help="AIGER and BLIF files: group their input and output bits into N words")
+                       help="AIGER, BLIF and Verilog: group the input and output bits into N words (Verilog: the "
+                            "data ports' bits in declaration order, low bit first; default: one word a port)")
     check.add_argument("--width", type=_width, metavar="BITS",
-                       help="AIGER and BLIF files: bits per word; comparator networks with --engine smt: the word "
-                            "width (default: the smallest that separates the channels' values)")
+                       help="AIGER, BLIF and Verilog: bits per word; comparator networks with --engine smt: the "
+                            "word width (default: the smallest that separates the channels' values)")
+    _add_design_options(check)
     check.add_argument("--count", action="store_true",
                        help="count every failing 0-1 input instead of stopping at the first (enumerate)")
     check.add_argument("--no-minimize", action="store_true",
@@ -138,6 +149,7 @@ def build_parser() -> argparse.ArgumentParser:
                        "for --redundant")
     stats.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
     stats.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    _add_design_options(stats)
     stats.add_argument("--format", choices=("text", "json"), default="text")
 
     build = commands.add_parser("build", help="write a reference comparator network or sorting circuit")
@@ -159,6 +171,9 @@ def build_parser() -> argparse.ArgumentParser:
                       "integers or a string of 0s and 1s (default: the smallest counterexample, if any)")
     draw.add_argument("--property", metavar="SPEC", help="property to judge the outputs by (default: the file's)")
     draw.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
+    draw.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF and Verilog: number of words")
+    draw.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF and Verilog: bits per word")
+    _add_design_options(draw)
 
     export = commands.add_parser("export", help="write the verification condition: a CNF or SMT-LIB 2 script "
                                  "that is unsatisfiable exactly when the property holds")
@@ -166,6 +181,9 @@ def build_parser() -> argparse.ArgumentParser:
     export.add_argument("--to", choices=EXPORT_FORMATS, required=True, help="dimacs (CNF) or smtlib (SMT-LIB 2)")
     export.add_argument("--property", metavar="SPEC", help="property to state (default: the file's, else sorts)")
     export.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+    export.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF and Verilog: number of words")
+    export.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF and Verilog: bits per word")
+    _add_design_options(export)
 
     repair = commands.add_parser("repair", help="find the smallest change that makes a network (comparators) or "
                                  "a gate circuit (gate ops) meet its property, proved by re-checking; gate "
@@ -183,6 +201,7 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("--quiet", action="store_true", help="no progress display on standard error")
     repair.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
     repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    _add_design_options(repair)
 
     equiv = commands.add_parser("equiv", help="prove that two netlists compute the same function, or find an "
                                 "input they disagree on")
@@ -193,6 +212,7 @@ def build_parser() -> argparse.ArgumentParser:
     equiv.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
     equiv.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     equiv.add_argument("--format", choices=("text", "json"), default="text")
+    _add_design_options(equiv)
     return parser
 
 
@@ -223,7 +243,12 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
     """The files to check with their settings; command-line options override the configuration."""
     if args.paths:
         requests = []
+        design = _design(args, [path for path in args.paths if is_verilog(path)])
+        if design is not None:
+            requests.append(CheckRequest(design.files[0], elaboration=design))
         for path in args.paths:
+            if is_verilog(path):
+                continue
             files = expand(path)
             if not files:
                 raise UsageError("no netlist files (*.json, *.aag, *.aig, *.blif) below this directory", path)
@@ -240,14 +265,14 @@ def _check_request(request: CheckRequest, count: bool, minimize: bool, progress=
                    certify: str | None = None, runner=None) -> FileResult:
     options = Options(width=request.width, count=count, certify=certify is not None)
     result = check_file(request.path, request.prop, request.engine or "auto", request.timeout, options, progress,
-                        minimize, request.words, runner)
+                        minimize, request.words, runner, request.elaboration)
     if certify is not None:
         if interruption.requested():
             result = replace(result, certification={"certified": False, "certificate": {
                 "method": "none", "files": [], "checked_by": [],
                 "scope": "not certified: the run was interrupted before the certificate was checked"}})
         else:
-            result = certify_file_result(result, certify, request.words, request.width)
+            result = certify_file_result(result, certify, request.words, request.width, request.elaboration)
     return result
 
 
@@ -334,9 +359,25 @@ def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     return exit_status(summarise(results))
 
 
-def _stats_result(path: str, args: argparse.Namespace) -> FileResult:
+def _design(args: argparse.Namespace, files: list[str]):
+    """The Verilog design the command line names: its files, ``--top`` and ``--param`` (None without files)."""
+    if not files:
+        if getattr(args, "top", None) or getattr(args, "param", None):
+            raise UsageError("--top and --param apply to Verilog files (*.v, *.sv), and none was given")
+        return None
+    parameters = [parameter_value(text, "--param") for text in args.param]
+    return verilog_design(files, args.top, parameters)
+
+
+def _read(path: str, args: argparse.Namespace):
+    """Read one netlist file of a command, a Verilog file as a design of its own with ``--top`` and ``--param``."""
+    design = _design(args, [path]) if is_verilog(path) else None
+    return read_netlist(path, getattr(args, "words", None), getattr(args, "width", None), design)
+
+
+def _stats_result(path: str, args: argparse.Namespace, design=None) -> FileResult:
     try:
-        netlist = read_netlist(path, args.words, args.width)
+        netlist = read_netlist(path, args.words, args.width, design) if design else _read(path, args)
     except SortcheckError as error:
         return FileResult(path, error=error)
     stats = netlist.stats()
@@ -376,8 +417,10 @@ def _stats_line(result: FileResult) -> str:
 
 
 def run_stats(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    paths = [file for path in args.paths for file in expand(path)]
-    results = [_stats_result(path, args) for path in paths]
+    design = _design(args, [path for path in args.paths if is_verilog(path)])
+    results = [_stats_result(design.files[0], args, design)] if design else []
+    paths = [file for path in args.paths if not is_verilog(path) for file in expand(path)]
+    results += [_stats_result(path, args) for path in paths]
     _report_errors(results, stderr)
     if args.format == "json":
         stdout.write(dumps(stats_report(results)))
@@ -407,7 +450,7 @@ def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    netlist = read_netlist(args.path)
+    netlist = _read(args.path, args)
     prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
     check_fits(prop, netlist, args.path, where="--property" if args.property else "property")
     positions = netlist.channels if isinstance(netlist, ComparatorNetwork) else netlist.words
@@ -422,7 +465,9 @@ def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         if isinstance(netlist, ComparatorNetwork) and set(values) <= {0, 1}:
             diagnosis = diagnose_network(netlist, prop, values)
     else:
-        result = check_file(args.path, prop if args.property else None, timeout=args.timeout)
+        result = check_file(args.path, prop if args.property else None, timeout=args.timeout, words=args.words,
+                            options=Options(width=args.width), elaboration=_design(args, [args.path])
+                            if is_verilog(args.path) else None)
         example = result.verdict.counterexample if result.verdict else None
         values = example.input if example is not None else None
         diagnosis = result.diagnosis
@@ -442,7 +487,7 @@ def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    network = read_netlist(args.path, args.words, args.width)
+    network = _read(args.path, args)
     prop = parse_property(args.property) if args.property else None
     if prop is not None:
         check_fits(prop, network, args.path, where="--property")
@@ -471,7 +516,7 @@ def run_repair(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_equiv(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    first, second = (read_netlist(path, args.words, args.width) for path in args.paths)
+    first, second = (_read(path, args) for path in args.paths)
     answer = equivalent(first, second, Budget.of(args.timeout), signed=args.signed, sources=args.paths)
     if interruption.requested() and answer.status.value == "unknown":
         answer = replace(answer, scope=f"interrupted by {interruption.signal}: {interrupted_words(answer.scope)}")
@@ -483,7 +528,7 @@ def run_equiv(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_export(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
-    netlist = read_netlist(args.path)
+    netlist = _read(args.path, args)
     prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
     check_fits(prop, netlist, args.path, where="--property" if args.property else "property")
     text = export_text(netlist, prop, args.to, args.path)

@@ -326,13 +326,13 @@ def certify_result(netlist: Netlist | None, path: str, verdict: Verdict | None, 
     return {"certified": certified, "certificate": certificate}
 
 
-def certify_file_result(result: FileResult, root: str | Path, words: int | None = None, width: int | None = None
-                        ) -> FileResult:
+def certify_file_result(result: FileResult, root: str | Path, words: int | None = None, width: int | None = None,
+                        elaboration=None) -> FileResult:
     """``result`` (checked with ``Options(certify=True)``) with its certificate written under ``root`` and
     checked; the netlist is read again from its file."""
     netlist = None
     if result.verdict is not None:
-        netlist = read_netlist(result.path, words, width)
+        netlist = read_netlist(result.path, words, width, elaboration)
     try:
         certification = certify_result(netlist, result.path, result.verdict, Path(root))
     except OSError as error:

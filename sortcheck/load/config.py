@@ -13,10 +13,17 @@ Each entry of ``paths`` is a path or a table with ``path`` and any of the
 per-path settings; relative paths are relative to the ``pyproject.toml``.
 ``words`` and ``width`` group the bits of AIGER and BLIF files into words;
 ``width`` is also the word width of word-level engines (``smt``).
+
+A Verilog path (``*.v``, ``*.sv``) is one design; its table may name the
+``top`` module, ``parameters`` (a table of names and values) and further
+``files`` of the design (paths relative to the ``pyproject.toml`` too)::
+
+    paths = [{path = "rtl/sorter.v", top = "sorter", parameters = {N = 16, W = 8}, files = ["rtl/cas.v"]}]
 """
 
 from __future__ import annotations
 
+import re
 import tomllib
 from dataclasses import dataclass, replace
 from pathlib import Path
@@ -25,12 +32,17 @@ from typing import Any
 from sortcheck.errors import UsageError
 from sortcheck.load.grouping import is_sidecar
 from sortcheck.load.property_text import parse_property
+from sortcheck.load.verilog import VERILOG_SUFFIXES, Elaboration
 from sortcheck.model import Property
 
 #: File name patterns a directory is searched for (grouping files beside circuits are left out).
 NETLIST_PATTERNS = ("*.json", "*.aag", "*.aig", "*.blif")
 
 SETTINGS = ("property", "engine", "timeout", "words", "width")
+DESIGN_SETTINGS = ("top", "parameters", "files")
+
+_IDENTIFIER = re.compile(r"^[A-Za-z_][A-Za-z0-9_$]*$")
+_PARAMETER_VALUE = re.compile(r"^(-?[0-9]+|[0-9]*'[sS]?[bBoOdDhH][0-9a-fA-FxXzZ_?]+|\"[^\"\\\s]*\")$")
 
 
 @dataclass(frozen=True)
@@ -43,6 +55,32 @@ class CheckRequest:
     timeout: float | None = None
     words: int | None = None
     width: int | None = None
+    elaboration: Elaboration | None = None
+
+
+def parameter_value(text: str, where: str, source: str | None = None) -> tuple[str, str]:
+    """``NAME=VALUE`` of a Verilog parameter, checked so that it cannot reach Yosys as anything else.
+
+    >>> parameter_value("W=8", "--param"), parameter_value("INIT=4'b1010", "--param")
+    (('W', '8'), ('INIT', "4'b1010"))
+    """
+    name, equals, value = text.partition("=")
+    name, value = name.strip(), value.strip()
+    if not equals or not _IDENTIFIER.match(name) or not _PARAMETER_VALUE.match(value):
+        raise UsageError(f"expected NAME=VALUE with a Verilog parameter name and a number or a sized literal, "
+                         f"got {text!r}", source, where)
+    return name, value
+
+
+def verilog_design(files: list[str], top: str | None, parameters: list[tuple[str, str]]) -> Elaboration:
+    """The elaboration of Verilog files, the top checked to be an identifier."""
+    if top is not None and not _IDENTIFIER.match(top):
+        raise UsageError(f"expected a module name, got {top!r}", None, "--top")
+    return Elaboration(tuple(files), top, tuple(parameters))
+
+
+def is_verilog(path: str) -> bool:
+    return Path(path).suffix.lower() in VERILOG_SUFFIXES
 
 
 def expand(path: str) -> list[str]:
@@ -115,12 +153,49 @@ def read_project_config(directory: str | Path = ".") -> list[CheckRequest]:
         if isinstance(entry, dict):
             if not isinstance(entry.get("path"), str):
                 raise UsageError("a table in paths needs a 'path' string", source, where)
-            own = _settings({k: v for k, v in entry.items() if k != "path"}, source, where, SETTINGS)
+            own = _settings({k: v for k, v in entry.items() if k not in ("path",) + DESIGN_SETTINGS}, source, where,
+                            SETTINGS)
             path, settings = entry["path"], {**defaults, **own}
+            design = _design(entry, directory, source, where)
+            if design is not None:
+                requests.append(CheckRequest(_relative(directory, path), **settings,
+                                             elaboration=replace(design, files=(_relative(directory, path),)
+                                                                 + design.files)))
+                continue
         elif isinstance(entry, str):
             path, settings = entry, defaults
         else:
             raise UsageError(f"expected a path or a table, got {entry!r}", source, where)
-        base = CheckRequest(str(Path(directory) / path) if directory != "." else path, **settings)
+        if is_verilog(path):
+            file = _relative(directory, path)
+            requests.append(CheckRequest(file, **settings, elaboration=Elaboration((file,))))
+            continue
+        base = CheckRequest(_relative(directory, path), **settings)
         requests.extend(replace(base, path=file) for file in expand(base.path))
     return requests
+
+
+def _relative(directory: str | Path, path: str) -> str:
+    return str(Path(directory) / path) if directory != "." else path
+
+
+def _design(entry: dict, directory: str | Path, source: str, where: str) -> Elaboration | None:
+    """The Verilog design of a table in ``paths`` (its ``top``, ``parameters``, ``files``), None for netlists."""
+    if not is_verilog(entry["path"]):
+        for key in DESIGN_SETTINGS:
+            if key in entry:
+                raise UsageError("only Verilog paths (*.v, *.sv) take this key", source, f"{where}.{key}")
+        return None
+    top = entry.get("top")
+    if top is not None and (not isinstance(top, str) or not _IDENTIFIER.match(top)):
+        raise UsageError(f"expected a module name, got {top!r}", source, f"{where}.top")
+    table = entry.get("parameters", {})
+    if not isinstance(table, dict):
+        raise UsageError("expected a table of parameter values", source, f"{where}.parameters")
+    parameters = [parameter_value(f"{name}={value if not isinstance(value, str) else value}",
+                                  f"{where}.parameters.{name}", source)
+                  for name, value in table.items()]
+    files = entry.get("files", [])
+    if not isinstance(files, list) or not all(isinstance(file, str) for file in files):
+        raise UsageError("expected a list of Verilog file paths", source, f"{where}.files")
+    return Elaboration(tuple(_relative(directory, file) for file in files), top, tuple(parameters))

@@ -18,6 +18,7 @@ from sortcheck.load.aiger import read_aiger
 from sortcheck.load.blif import read_blif
 from sortcheck.load.decode import decode_text, load_json, read_file_bytes
 from sortcheck.load.schema import check_header, validate_shape
+from sortcheck.load.verilog import VERILOG_SUFFIXES, Elaboration, read_verilog_design
 from sortcheck.model.graphs import find_cycle, topological_order
 from sortcheck.model import (
     OP_ARITY, ComparatorNetwork, GateCircuit, Gate, Netlist, OutputWord, Word, bit_name, property_from_json,
@@ -68,16 +69,22 @@ def parse_netlist(text: str | bytes, source: str = "<netlist>") -> Netlist:
     return _build_circuit(data, source, metadata)
 
 
-def read_netlist(path: str | os.PathLike, words: int | None = None, width: int | None = None) -> Netlist:
+def read_netlist(path: str | os.PathLike, words: int | None = None, width: int | None = None,
+                 elaboration: Elaboration | None = None) -> Netlist:
     """Read and parse a netlist file; errors name the file as given.
 
     ``.aag``/``.aig`` (AIGER) and ``.blif`` files are bit-level circuits: their
     bits are grouped into ``words`` words of ``width`` bits (from the
     arguments, else from a grouping file beside the circuit, see
-    :mod:`sortcheck.load.grouping`).  Every other file is read as format
+    :mod:`sortcheck.load.grouping`).  ``.v`` and ``.sv`` files are Verilog,
+    synthesized by Yosys (:mod:`sortcheck.load.verilog`): ``elaboration``
+    gives the design's files, top module and parameters (default: this file
+    alone, its top found by Yosys).  Every other file is read as format
     version 1 JSON, for which ``words`` and ``width`` mean nothing.
     """
     suffix = Path(path).suffix.lower()
+    if elaboration is not None or suffix in VERILOG_SUFFIXES:
+        return read_verilog_design(elaboration or Elaboration((str(path),)), words, width)
     if suffix in (".aag", ".aig"):
         return read_aiger(path, words, width)
     if suffix == ".blif":

@@ -123,6 +123,9 @@ class GateCircuit:
     name: str | None = None
     description: str | None = None
     claim: "Property | None" = field(default=None, compare=False)
+    #: Where the circuit came from when a front end made it (a Verilog design: top module, Yosys, latency,
+    #: the ports of each word); None for netlist files.
+    origin: dict | None = field(default=None, compare=False)
 
     @property
     def words(self) -> int:
@@ -217,4 +220,6 @@ class GateCircuit:
         }
         if len(set(self.widths)) > 1:
             stats["widths"] = list(self.widths)
+        if self.origin is not None:
+            stats["source"] = self.origin
         return stats

@@ -22,6 +22,7 @@ from sortcheck.explain.gate_minimal import minimize_circuit_counterexample
 from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.trace import fits_in_report
 from sortcheck.load import read_netlist
+from sortcheck.load.verilog import Elaboration, design_scope
 from sortcheck.model import ComparatorNetwork, DEFAULT_PROPERTY, GateCircuit, Netlist, Property, check_fits
 
 #: Refuted gate circuits of at most this many gates are lifted, within this many seconds, for a trace.
@@ -139,7 +140,7 @@ def _lifted_trace(circuit: GateCircuit, verdict: Verdict, timeout: float | None
 
 def check_file(path: str, prop: Property | None = None, engine: str = "auto", timeout: float | None = None,
                options: Options = Options(), progress: Progress | None = None, minimize: bool = True,
-               words: int | None = None, runner=None) -> FileResult:
+               words: int | None = None, runner=None, elaboration: Elaboration | None = None) -> FileResult:
     """Load one file and check it; never raises for bad input.
 
     ``prop`` (from the command line) overrides the property the file claims;
@@ -155,7 +156,7 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
     netlist = None
     chosen = None
     try:
-        netlist = read_netlist(path, words, options.width)
+        netlist = read_netlist(path, words, options.width, elaboration)
         chosen = prop or netlist.claim or DEFAULT_PROPERTY
         check_fits(chosen, netlist, path, where="--property" if prop else "property")
         if runner is None:
@@ -164,6 +165,8 @@ def check_file(path: str, prop: Property | None = None, engine: str = "auto", ti
         else:
             verdict = check_split(netlist, chosen, engine, timeout, path, options, progress, runner)
         verdict, diagnosis, trace = explain_refutation(netlist, verdict, minimize, timeout)
+        if getattr(netlist, "origin", None) is not None:
+            verdict = replace(verdict, scope=f"{verdict.scope}; {design_scope(netlist.origin)}")
         if interruption.requested():
             verdict = verdict.interrupted(interruption.signal)
     except SortcheckError as error:

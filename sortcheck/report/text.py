@@ -5,6 +5,7 @@ from __future__ import annotations
 from typing import Sequence
 
 from sortcheck.explain import Trace
+from sortcheck.load.verilog import describe_origin
 from sortcheck.report.results import FileResult, summarise
 
 INDENT = " " * 9
@@ -65,7 +66,11 @@ def describe_netlist(stats: dict | None, kind: str | None) -> str:
         return ""
     if kind == "comparator-network":
         return f"{stats['channels']} channels, {stats['size']} comparators, depth {stats['depth']}"
-    return f"{stats['words']} words of {stats['width']} bits, {stats['gates']} gates, depth {stats['depth']}"
+    text = f"{stats['words']} words of {stats['width']} bits, {stats['gates']} gates, depth {stats['depth']}"
+    source = stats.get("source")
+    if source is not None and source.get("registers"):
+        text += f", latency {source['latency']} cycle{'s' if source['latency'] != 1 else ''}"
+    return text
 
 
 def format_result(result: FileResult) -> list[str]:
@@ -76,6 +81,8 @@ def format_result(result: FileResult) -> list[str]:
     lines = [f"{result.status.upper():<8} {result.path}",
              f"{INDENT}{verdict.prop.describe()}  [{describe_netlist(result.stats, result.kind)}]" if verdict.prop
              else f"{INDENT}not read"]
+    if result.stats and result.stats.get("source"):
+        lines.append(f"{INDENT}design: {describe_origin(result.stats['source'])}")
     example = verdict.counterexample
     if example is not None:
         width = max(len(str(v)) for v in (*example.input, *example.output))

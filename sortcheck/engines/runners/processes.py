@@ -27,7 +27,8 @@ joined (:meth:`Worker.stop`, :func:`end`), so none is left a zombie;
 line runs every command in it), :func:`end_all` every one.
 
 An external program (``drat-trim``) is run by :func:`run_program`, which
-sets the same parent-death signal between fork and exec.
+sets the same parent-death signal between fork and exec
+(:mod:`sortcheck.load.external`, where the Verilog front end runs Yosys).
 
 Workers are forked where ``fork`` exists, so they inherit what the parent
 prepared; elsewhere they are spawned (and the ``spawn`` machinery's resource
@@ -52,15 +53,16 @@ import traceback
 from typing import Any, Callable, Iterator, Sequence
 
 from sortcheck.engines.base import interruption
+from sortcheck.load import external
 
 #: ``prctl`` option that sets the signal a process gets when its parent dies (linux/prctl.h).
-PR_SET_PDEATHSIG = 1
+PR_SET_PDEATHSIG = external.PR_SET_PDEATHSIG
 
 #: How often a child asks whether its parent is alive, where the parent-death signal does not exist.
 PARENT_POLL_SECONDS = 0.5
 
 #: Exit status of a child that found its parent gone before it began.
-ORPHANED = 70
+ORPHANED = external.ORPHANED
 
 #: How often :func:`run_calls` wakes up to ask whether to stop and to report.
 WAIT_SECONDS = 0.1
@@ -83,28 +85,6 @@ def _parent_death_signal(signal_number: int) -> bool:
         return libc.prctl(PR_SET_PDEATHSIG, signal_number, 0, 0, 0) == 0
     except (OSError, AttributeError):
         return False
-
-
-def _program_binding(parent: int) -> Callable[[], None] | None:
-    """What an external program's child runs between fork and exec to bind itself to ``parent`` (Linux only).
-
-    The ``prctl`` function is looked up here, before the fork, so the child
-    only makes two system calls (little can go wrong in a child forked from a
-    process with threads).
-    """
-    if not sys.platform.startswith("linux"):
-        return None
-    try:
-        prctl = ctypes.CDLL(None, use_errno=True).prctl
-    except (OSError, AttributeError):
-        return None
-
-    def bind() -> None:
-        prctl(PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)  # kept across exec
-        if os.getppid() != parent:
-            os._exit(ORPHANED)
-
-    return bind
 
 
 def _watch_parent(parent: int) -> None:
@@ -172,29 +152,15 @@ def ending_children() -> Iterator[None]:
 
 
 def run_program(argv: Sequence[str], seconds: float) -> subprocess.CompletedProcess:
-    """Run an external program to its end, its output captured, bound to this process.
+    """Run an external program to its end, bound to this process (:func:`sortcheck.load.external.run_program`).
 
-    On Linux it gets SIGKILL when this process dies (the parent-death signal
-    is set between fork and exec and survives exec); elsewhere only
-    ``seconds`` bounds it.  It is ended, and ``subprocess.TimeoutExpired``
-    raised, after ``seconds`` or as soon as the run is interrupted.
+    It is ended, and ``subprocess.TimeoutExpired`` raised, after ``seconds``
+    or as soon as the run is interrupted.
 
     >>> run_program([sys.executable, "-c", "print(6 * 7)"], 60).stdout
     '42\\n'
     """
-    with subprocess.Popen(list(argv), stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
-                          preexec_fn=_program_binding(os.getpid())) as program:
-        until = time.monotonic() + seconds
-        while True:
-            try:
-                stdout, stderr = program.communicate(timeout=WAIT_SECONDS)
-            except subprocess.TimeoutExpired:
-                if interruption.requested() or time.monotonic() >= until:
-                    program.kill()
-                    program.communicate()
-                    raise subprocess.TimeoutExpired(list(argv), seconds) from None
-                continue
-            return subprocess.CompletedProcess(list(argv), program.returncode, stdout, stderr)
+    return external.run_program(argv, seconds, stopped=interruption.requested)
 
 
 def running() -> list[int]:
