@@ -42,7 +42,7 @@ from sortcheck.errors import NetlistError, UsageError
 from sortcheck.load.external import run_program
 
 #: Bump when the script or the cached layout changes, so old cache entries are not used.
-CACHE_LAYOUT = 2
+CACHE_LAYOUT = 3
 
 #: Seconds Yosys may take on one design.
 YOSYS_SECONDS = 900.0
@@ -136,11 +136,21 @@ def yosys_script(paths: Sequence[str], elaboration: Elaboration) -> str:
     synth -flatten -noabc -top sorter
     opt_clean
     write_json gates.json
+    >>> print(yosys_script(["a.v"], Elaboration(("a.v",), None, (("N", "5"),))).splitlines()[1:4])
+    ['hierarchy -auto-top', 'chparam -set N 5 A:top', 'hierarchy -check -auto-top']
     """
-    top = f"-top {elaboration.top}" if elaboration.top else "-auto-top"
-    chparam = "".join(f" -chparam {name} {value}" for name, value in elaboration.parameters)
-    lines = ["read_verilog -sv " + " ".join(_quoted(path) for path in paths),
-             f"hierarchy -check {top}{chparam}", "proc", "flatten", "opt_clean", "write_json rtl.json",
+    lines = ["read_verilog -sv " + " ".join(_quoted(path) for path in paths)]
+    if elaboration.top:
+        top = f"-top {elaboration.top}"
+        lines.append(f"hierarchy -check {top}" + "".join(f" -chparam {name} {value}"
+                                                        for name, value in elaboration.parameters))
+    else:  # the top is found first; then its parameters are set (-chparam needs the name)
+        top = "-auto-top"
+        if elaboration.parameters:
+            lines += ["hierarchy -auto-top", "chparam" + "".join(f" -set {name} {value}"
+                                                                 for name, value in elaboration.parameters) + " A:top"]
+        lines.append("hierarchy -check -auto-top")
+    lines += ["proc", "flatten", "opt_clean", "write_json rtl.json",
              f"synth -flatten -noabc {top}", "opt_clean", "write_json gates.json"]
     return "\n".join(lines) + "\n"
 
