@@ -34,7 +34,7 @@ import shutil
 import subprocess
 import sys
 import tempfile
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Sequence
 
@@ -42,7 +42,7 @@ from sortcheck.errors import NetlistError, UsageError
 from sortcheck.load.external import run_program
 
 #: Bump when the script or the cached layout changes, so old cache entries are not used.
-CACHE_LAYOUT = 3
+CACHE_LAYOUT = 4
 
 #: Seconds Yosys may take on one design.
 YOSYS_SECONDS = 900.0
@@ -136,19 +136,14 @@ def yosys_script(paths: Sequence[str], elaboration: Elaboration) -> str:
     synth -flatten -noabc -top sorter
     opt_clean
     write_json gates.json
-    >>> print(yosys_script(["a.v"], Elaboration(("a.v",), None, (("N", "5"),))).splitlines()[1:4])
-    ['hierarchy -auto-top', 'chparam -set N 5 A:top', 'hierarchy -check -auto-top']
     """
     lines = ["read_verilog -sv " + " ".join(_quoted(path) for path in paths)]
     if elaboration.top:
         top = f"-top {elaboration.top}"
         lines.append(f"hierarchy -check {top}" + "".join(f" -chparam {name} {value}"
                                                         for name, value in elaboration.parameters))
-    else:  # the top is found first; then its parameters are set (-chparam needs the name)
+    else:  # with parameters, :func:`synthesize` names the top first (-chparam is ignored with -auto-top)
         top = "-auto-top"
-        if elaboration.parameters:
-            lines += ["hierarchy -auto-top", "chparam" + "".join(f" -set {name} {value}"
-                                                                 for name, value in elaboration.parameters) + " A:top"]
         lines.append("hierarchy -check -auto-top")
     lines += ["proc", "flatten", "opt_clean", "write_json rtl.json",
              f"synth -flatten -noabc {top}", "opt_clean", "write_json gates.json"]
@@ -241,25 +236,35 @@ def synthesize(elaboration: Elaboration) -> Synthesized:
         return _synthesized(entry, elaboration, cached=True)
     with tempfile.TemporaryDirectory(prefix="sortcheck-yosys-") as folder:
         paths = [os.path.relpath(os.path.abspath(path), folder) for path in elaboration.files]
-        script = yosys_script(paths, elaboration)
-        Path(folder, "design.ys").write_text(script, encoding="utf-8")
-        try:
-            result = run_program(command + ["-q", "-s", "design.ys"], YOSYS_SECONDS, cwd=folder)
-        except subprocess.TimeoutExpired:
-            raise VerilogError(f"Yosys did not finish within {YOSYS_SECONDS:.0f} s", elaboration.files[0]) from None
-        except OSError as error:
-            raise UsageError(f"cannot run Yosys ({' '.join(command[:1])}): {error}") from None
-        if result.returncode != 0:
-            raise yosys_error(result.stdout + "\n" + result.stderr, elaboration, dict(zip(paths, elaboration.files)))
+        renaming = dict(zip(paths, elaboration.files))
+        if elaboration.parameters and not elaboration.top:
+            find_top = "read_verilog -sv " + " ".join(map(_quoted, paths)) + \
+                "\nhierarchy -auto-top\ntee -q -o top.txt select -list A:top\n"
+            _run(command, find_top, folder, elaboration, renaming)
+            found = Path(folder, "top.txt").read_text(encoding="utf-8").split()
+            elaboration = replace(elaboration, top=found[0].lstrip("\\"))
+        _run(command, yosys_script(paths, elaboration), folder, elaboration, renaming)
         rtl = json.loads(Path(folder, "rtl.json").read_text(encoding="utf-8"))
         gates = json.loads(Path(folder, "gates.json").read_text(encoding="utf-8"))
-    renaming = dict(zip(paths, elaboration.files))
     top = _top_name(gates)
     entry = {"layout": CACHE_LAYOUT, "top": top, "module": _relocated(gates["modules"][top], renaming),
              "state_cells": _state_cells(rtl, renaming), "yosys": yosys,
              "script": yosys_script(elaboration.files, elaboration)}
     _cache_write(key, entry)
     return _synthesized(entry, elaboration, cached=False)
+
+
+def _run(command: list[str], script: str, folder: str, elaboration: Elaboration, renaming: dict) -> None:
+    """Run a Yosys script in ``folder``; raise Yosys's first error as ours."""
+    Path(folder, "design.ys").write_text(script, encoding="utf-8")
+    try:
+        result = run_program(command + ["-q", "-s", "design.ys"], YOSYS_SECONDS, cwd=folder)
+    except subprocess.TimeoutExpired:
+        raise VerilogError(f"Yosys did not finish within {YOSYS_SECONDS:.0f} s", elaboration.files[0]) from None
+    except OSError as error:
+        raise UsageError(f"cannot run Yosys ({command[0]}): {error}") from None
+    if result.returncode != 0:
+        raise yosys_error(result.stdout + "\n" + result.stderr, elaboration, renaming)
 
 
 def _synthesized(entry: dict, elaboration: Elaboration, cached: bool) -> Synthesized:
