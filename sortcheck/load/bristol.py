@@ -358,8 +358,8 @@ def dump_bristol(netlist: Netlist, width: int | None = None, style: str = "xor",
     2 1 1
     <BLANKLINE>
     2 1 0 1 2 AND
-    2 1 0 1 3 XOR
-    2 1 0 2 4 XOR
+    2 1 0 2 3 XOR
+    2 1 0 1 4 XOR
     2 1 3 4 5 AND
     2 1 0 5 6 XOR
     2 1 1 5 7 XOR

@@ -95,7 +95,7 @@ class _Rewriter:
             made = self.add("and", (first, second))
             heapq.heappush(queue, (self.depth[made], order, made))
             order += 1
-        (_, _, first), (_, _, second) = sorted(queue)
+        (_, _, first), (_, _, second) = sorted(queue, key=lambda item: item[1])  # two inputs keep their order
         return self.add("and", (first, second), out)
 
     def xor_chain(self, inputs: list[Signal], out: str | None) -> str:
@@ -128,15 +128,26 @@ class _Rewriter:
             raise ValueError(f"unknown op {op!r}")
 
 
+def _written_order(circuit: GateCircuit) -> tuple[Gate, ...]:
+    """The gates as written when every gate comes after the gates it reads, else in a topological order."""
+    known = {bit_name(word.name, i) for word in circuit.inputs for i in range(word.width)}
+    for gate in circuit.gates:
+        if not all(isinstance(signal, int) or signal in known for signal in gate.inputs):
+            return circuit.gate_order
+        known.add(gate.out)
+    return circuit.gates
+
+
 def to_and_xor(circuit: GateCircuit) -> GateCircuit:
     """The same circuit with 2-input AND, 2-input XOR and NOT gates only (see the module documentation).
 
+    Gates keep the order they are written in when it evaluates, else take a topological order.
     Every gate of ``circuit`` keeps its output name (the last of the gates
     it becomes defines it); the new intermediate signals are named ``t<k>~``.
     Inputs, outputs, name, description and claim are kept.
     """
     rewriter = _Rewriter(circuit)
-    for gate in circuit.gate_order:
+    for gate in _written_order(circuit):
         rewriter.rewrite(gate)
     return GateCircuit(circuit.inputs, tuple(rewriter.gates), circuit.outputs, name=circuit.name,
                        description=circuit.description, claim=circuit.claim)
