@@ -75,7 +75,9 @@ class _Rewriter:
     def add(self, op: str, inputs: tuple[Signal, ...], out: str | None = None) -> str:
         out = out or self.fresh()
         self.gates.append(Gate(out, op, inputs))
-        self.depth[out] = max(self.level(signal) for signal in inputs) + (op == "and")
+        depth = self.depth
+        level = max(depth.get(inputs[0], 0), depth.get(inputs[-1], 0))  # one or two inputs
+        depth[out] = level + 1 if op == "and" else level
         return out
 
     def negate(self, signal: Signal, out: str | None = None) -> str:
@@ -138,6 +140,13 @@ def _written_order(circuit: GateCircuit) -> tuple[Gate, ...]:
     return circuit.gates
 
 
+def _rewritten(circuit: GateCircuit) -> _Rewriter:
+    rewriter = _Rewriter(circuit)
+    for gate in _written_order(circuit):
+        rewriter.rewrite(gate)
+    return rewriter
+
+
 def to_and_xor(circuit: GateCircuit) -> GateCircuit:
     """The same circuit with 2-input AND, 2-input XOR and NOT gates only (see the module documentation).
 
@@ -146,9 +155,7 @@ def to_and_xor(circuit: GateCircuit) -> GateCircuit:
     it becomes defines it); the new intermediate signals are named ``t<k>~``.
     Inputs, outputs, name, description and claim are kept.
     """
-    rewriter = _Rewriter(circuit)
-    for gate in _written_order(circuit):
-        rewriter.rewrite(gate)
+    rewriter = _rewritten(circuit)
     return GateCircuit(circuit.inputs, tuple(rewriter.gates), circuit.outputs, name=circuit.name,
                        description=circuit.description, claim=circuit.claim)
 
@@ -172,5 +179,6 @@ def and_depth(circuit: GateCircuit) -> int:
 
 def mpc_costs(circuit: GateCircuit) -> dict[str, int]:
     """``{"and_count": ..., "and_depth": ...}`` of the circuit rewritten by :func:`to_and_xor`."""
-    basic = to_and_xor(circuit)
-    return {"and_count": sum(gate.op == "and" for gate in basic.gates), "and_depth": and_depth(basic)}
+    rewriter = _rewritten(circuit)
+    depth = max((rewriter.level(bit) for word in circuit.outputs for bit in word.bits), default=0)
+    return {"and_count": sum(gate.op == "and" for gate in rewriter.gates), "and_depth": depth}
