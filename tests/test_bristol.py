@@ -15,6 +15,7 @@ description and sharing no code with sortcheck; Python's ``sorted``; ``tests/gat
 from __future__ import annotations
 
 import itertools
+import json
 from pathlib import Path
 
 import pytest
@@ -173,7 +174,6 @@ def test_hand_written_sorter_is_proved_and_its_and_figures_are_the_texts(tmp_pat
     assert bristol_and_figures(HAND_SORTER)[:2] == (5, 3)
     status, out, _ = run("stats", path, "--format", "json")
     assert status == 0
-    import json
     stats = json.loads(out)["results"][0]["stats"]
     assert (stats["and_count"], stats["and_depth"]) == (5, 3)
     extended = tmp_path / "sort2x2-mand.bristol"
