@@ -28,10 +28,13 @@ from sortcheck.explain.lifted import lifted_view
 from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
 from sortcheck.load import dump_netlist, parse_property, read_netlist
+from sortcheck.load.bristol import dump_bristol
+from sortcheck.load.verilog_out import dump_verilog
 from sortcheck.load.config import CheckRequest, expand, is_verilog, parameter_value, read_project_config, verilog_design
 
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, check_fits
 from sortcheck.model.circuit_builds import build_circuit
+from sortcheck.model.and_xor import mpc_costs
 from sortcheck.model.cost import cost_counts
 from sortcheck.model.families import FAMILIES, build_family
 from sortcheck.model.lowering import STYLES
@@ -116,10 +119,10 @@ def build_parser() -> argparse.ArgumentParser:
     check.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS",
                        help="time budget per file; a check that runs out is 'unknown' (exit 3)")
     check.add_argument("--words", type=_words, metavar="N",
-                       help="AIGER, BLIF and Verilog: group the input and output bits into N words (Verilog: the "
+                       help="AIGER, BLIF, Bristol and Verilog: group the input and output bits into N words (Verilog: the "
                             "data ports' bits in declaration order, low bit first; default: one word a port)")
     check.add_argument("--width", type=_width, metavar="BITS",
-                       help="AIGER, BLIF and Verilog: bits per word; comparator networks with --engine smt: the "
+                       help="AIGER, BLIF, Bristol and Verilog: bits per word; comparator networks with --engine smt: the "
                             "word width (default: the smallest that separates the channels' values)")
     _add_design_options(check)
     check.add_argument("--count", action="store_true",
@@ -147,8 +150,8 @@ def build_parser() -> argparse.ArgumentParser:
                        help="comparator networks: find the comparators that never swap on any input (proved)")
     stats.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS", help="time budget per file "
                        "for --redundant")
-    stats.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
-    stats.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    stats.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF, Bristol and Verilog files: number of words")
+    stats.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF, Bristol and Verilog files: bits per word")
     _add_design_options(stats)
     stats.add_argument("--format", choices=("text", "json"), default="text")
 
@@ -162,6 +165,10 @@ def build_parser() -> argparse.ArgumentParser:
     build.add_argument("--key-bits", type=_width, metavar="K", help="compare only the K most significant bits")
     build.add_argument("--signed", action="store_true", help="compare two's complement words")
     build.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
+    build.add_argument("--format", choices=("json", "bristol", "verilog"),
+                       help="json (netlist format), bristol (Bristol Fashion AND/XOR/INV gates: needs --width; "
+                            "comparators in the xor style unless --style says otherwise) or verilog (a module with "
+                            "a port per word); default: by the suffix of --output (.bristol, .v), else json")
 
     draw = commands.add_parser("draw", help="draw a comparator network (or a gate circuit that lifts to one) as "
                                "SVG, with a counterexample on it")
@@ -171,18 +178,27 @@ def build_parser() -> argparse.ArgumentParser:
                       "integers or a string of 0s and 1s (default: the smallest counterexample, if any)")
     draw.add_argument("--property", metavar="SPEC", help="property to judge the outputs by (default: the file's)")
     draw.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
-    draw.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF and Verilog: number of words")
-    draw.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF and Verilog: bits per word")
+    draw.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF, Bristol and Verilog files: number of words")
+    draw.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF, Bristol and Verilog files: bits per word")
     _add_design_options(draw)
 
     export = commands.add_parser("export", help="write the verification condition: a CNF or SMT-LIB 2 script "
                                  "that is unsatisfiable exactly when the property holds")
     export.add_argument("path", metavar="PATH")
-    export.add_argument("--to", choices=EXPORT_FORMATS, required=True, help="dimacs (CNF) or smtlib (SMT-LIB 2)")
+    export.add_argument("--to", choices=EXPORT_FORMATS, required=True,
+                        help="dimacs (CNF) or smtlib (SMT-LIB 2); or the netlist itself: bristol (Bristol Fashion "
+                             "AND/XOR/INV gates) or verilog (a synthesizable module, a port per word)")
+    export.add_argument("--width", type=_width, metavar="BITS",
+                        help="comparator networks: the word width to lower them to gates for bristol (needed), "
+                             "and the default of the verilog module's parameter W (default 8); AIGER, BLIF, "
+                             "Bristol and Verilog files: bits per word")
+    export.add_argument("--style", choices=sorted(STYLES),
+                        help="comparator networks to bristol: how comparators become gates (default: xor, the "
+                             "fewest AND gates)")
     export.add_argument("--property", metavar="SPEC", help="property to state (default: the file's, else sorts)")
     export.add_argument("--output", metavar="FILE", help="write to FILE instead of standard output")
-    export.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF and Verilog: number of words")
-    export.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF and Verilog: bits per word")
+    export.add_argument("--words", type=_words, metavar="N",
+                        help="AIGER, BLIF, Bristol and Verilog files: number of words (their --width: bits per word)")
     _add_design_options(export)
 
     repair = commands.add_parser("repair", help="find the smallest change that makes a network (comparators) or "
@@ -199,8 +215,8 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("--cluster", metavar="ADDRESS",
                         help="run that search's pieces on a Dask scheduler (tcp://host:8786)")
     repair.add_argument("--quiet", action="store_true", help="no progress display on standard error")
-    repair.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
-    repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    repair.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF, Bristol and Verilog files: number of words")
+    repair.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF, Bristol and Verilog files: bits per word")
     _add_design_options(repair)
 
     equiv = commands.add_parser("equiv", help="prove that two netlists compute the same function, or find an "
@@ -208,8 +224,8 @@ def build_parser() -> argparse.ArgumentParser:
     equiv.add_argument("paths", nargs=2, metavar="PATH")
     equiv.add_argument("--signed", action="store_true", help="a comparator network beside a gate circuit: compare "
                        "two's complement words")
-    equiv.add_argument("--words", type=_words, metavar="N", help="AIGER and BLIF files: number of words")
-    equiv.add_argument("--width", type=_width, metavar="BITS", help="AIGER and BLIF files: bits per word")
+    equiv.add_argument("--words", type=_words, metavar="N", help="AIGER, BLIF, Bristol and Verilog files: number of words")
+    equiv.add_argument("--width", type=_width, metavar="BITS", help="AIGER, BLIF, Bristol and Verilog files: bits per word")
     equiv.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
     equiv.add_argument("--format", choices=("text", "json"), default="text")
     _add_design_options(equiv)
@@ -251,7 +267,8 @@ def _requests(args: argparse.Namespace) -> list[CheckRequest]:
                 continue
             files = expand(path)
             if not files:
-                raise UsageError("no netlist files (*.json, *.aag, *.aig, *.blif) below this directory", path)
+                raise UsageError("no netlist files (*.json, *.aag, *.aig, *.blif, *.bristol) below this directory",
+                                 path)
             requests.extend(CheckRequest(file) for file in files)
     else:
         requests = read_project_config(".")
@@ -383,6 +400,7 @@ def _stats_result(path: str, args: argparse.Namespace, design=None) -> FileResul
     stats = netlist.stats()
     if isinstance(netlist, GateCircuit):
         stats["costs"] = cost_counts(netlist)
+        stats.update(mpc_costs(netlist))
     elif args.redundant:
         stats.update(_redundancy(netlist, args.timeout))
     return FileResult(path, kind_of(netlist), stats=stats)
@@ -404,6 +422,7 @@ def _stats_line(result: FileResult) -> str:
         line += " (" + ", ".join(f"{op} {count}" for op, count in stats["ops"].items()) + ")"
         costs = stats["costs"]
         line += f"; as 2-input gates: {costs['and']} AND, {costs['or']} OR, {costs['xor']} XOR, {costs['not']} NOT"
+        line += f"; as AND/XOR/NOT: {stats['and_count']} AND, AND depth {stats['and_depth']}"
     elif stats["reversed_comparators"]:
         line += f" ({stats['reversed_comparators']} reversed)"
     if "redundant" in stats:
@@ -430,6 +449,11 @@ def run_stats(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 
 
 def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
+    args.format = args.format or {".bristol": "bristol", ".v": "verilog"}.get(Path(args.output or "").suffix, "json")
+    if args.format == "bristol" and args.width is None:
+        raise UsageError("--width is needed for Bristol Fashion (its gates work on bits)", "build")
+    if args.format == "bristol" and args.style is None and args.family != "counting":
+        args.style = "xor"  # the fewest AND gates, what secure computation pays for
     if args.width is None:
         if args.family == "counting" or args.style or args.key_bits or args.signed:
             raise UsageError("--width is needed for gate circuits (counting, --style, --key-bits, --signed)",
@@ -440,13 +464,21 @@ def run_build(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
         netlist = build_circuit(args.family, args.channels, args.width, style=args.style, key_bits=args.key_bits,
                                 signed=args.signed)
         figures = f"{netlist.words} words of {netlist.width} bits, {len(netlist.gates)} gates, depth {netlist.depth}"
-    text = dump_netlist(netlist)
+    text = _build_text(netlist, args)
     if args.output:
         _write(args.output, text)
         print(f"wrote {args.output}: {netlist.name}, {figures}", file=stderr)
     else:
         stdout.write(text)
     return EXIT_PROVED
+
+
+def _build_text(netlist, args: argparse.Namespace) -> str:
+    if args.format == "bristol":
+        return dump_bristol(netlist)
+    if args.format == "verilog":
+        return dump_verilog(netlist)
+    return dump_netlist(netlist)
 
 
 def run_draw(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
@@ -531,10 +563,11 @@ def run_export(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
     netlist = _read(args.path, args)
     prop = parse_property(args.property) if args.property else netlist.claim or DEFAULT_PROPERTY
     check_fits(prop, netlist, args.path, where="--property" if args.property else "property")
-    text = export_text(netlist, prop, args.to, args.path)
+    text = export_text(netlist, prop, args.to, args.path, width=args.width, style=args.style)
     if args.output:
         _write(args.output, text)
-        print(f"wrote {args.output}: {args.to} for {prop.describe()}", file=stderr)
+        what = "the netlist (not checked by export)" if args.to in ("bristol", "verilog") else prop.describe()
+        print(f"wrote {args.output}: {args.to} for {what}", file=stderr)
     else:
         stdout.write(text)
     return EXIT_PROVED

@@ -1,6 +1,6 @@
 """Which files to check, and how: paths on the command line, directories, and ``[tool.sortcheck]``.
 
-A directory stands for every netlist file below it (``*.json``), in sorted
+A directory stands for every netlist file below it (:data:`NETLIST_PATTERNS`), in sorted
 order.  With no path on the command line, ``sortcheck check`` reads the
 ``[tool.sortcheck]`` table of ``pyproject.toml`` in the working directory::
 
@@ -36,7 +36,7 @@ from sortcheck.load.verilog import VERILOG_SUFFIXES, Elaboration
 from sortcheck.model import Property
 
 #: File name patterns a directory is searched for (grouping files beside circuits are left out).
-NETLIST_PATTERNS = ("*.json", "*.aag", "*.aig", "*.blif")
+NETLIST_PATTERNS = ("*.json", "*.aag", "*.aig", "*.blif", "*.bristol")
 
 SETTINGS = ("property", "engine", "timeout", "words", "width")
 DESIGN_SETTINGS = ("top", "parameters", "files")

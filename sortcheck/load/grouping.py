@@ -48,8 +48,8 @@ from sortcheck.model.circuit import Signal
 #: The grouping file of ``FILE`` is ``FILE`` followed by this suffix.
 SIDECAR_SUFFIX = ".words"
 
-#: File suffixes of the bit-level circuit formats.
-CIRCUIT_SUFFIXES = (".aag", ".aig", ".blif")
+#: File suffixes of the bit-level circuit formats (whose grouping files are not netlists themselves).
+CIRCUIT_SUFFIXES = (".aag", ".aig", ".blif", ".bristol")
 
 #: Limits shared with netlist format version 1 (README: the netlist format).
 MAX_WORDS = 1_048_576

@@ -16,6 +16,7 @@ from typing import Any
 from sortcheck.errors import NetlistError
 from sortcheck.load.aiger import read_aiger
 from sortcheck.load.blif import read_blif
+from sortcheck.load.bristol import SUFFIX as BRISTOL_SUFFIX, read_bristol
 from sortcheck.load.decode import decode_text, load_json, read_file_bytes
 from sortcheck.load.schema import check_header, validate_shape
 from sortcheck.load.verilog import VERILOG_SUFFIXES, Elaboration, read_verilog_design
@@ -76,11 +77,13 @@ def read_netlist(path: str | os.PathLike, words: int | None = None, width: int |
     ``.aag``/``.aig`` (AIGER) and ``.blif`` files are bit-level circuits: their
     bits are grouped into ``words`` words of ``width`` bits (from the
     arguments, else from a grouping file beside the circuit, see
-    :mod:`sortcheck.load.grouping`).  ``.v`` and ``.sv`` files are Verilog,
-    synthesized by Yosys (:mod:`sortcheck.load.verilog`): ``elaboration``
-    gives the design's files, top module and parameters (default: this file
-    alone, its top found by Yosys).  Every other file is read as format
-    version 1 JSON, for which ``words`` and ``width`` mean nothing.
+    :mod:`sortcheck.load.grouping`).  ``.bristol`` files (Bristol Fashion,
+    :mod:`sortcheck.load.bristol`) have their declared values as words unless
+    a grouping is given.  ``.v`` and ``.sv`` files are Verilog, synthesized by
+    Yosys (:mod:`sortcheck.load.verilog`): ``elaboration`` gives the design's
+    files, top module and parameters (default: this file alone, its top found
+    by Yosys).  Every other file is read as format version 1 JSON, for which
+    ``words`` and ``width`` mean nothing.
     """
     suffix = Path(path).suffix.lower()
     if elaboration is not None or suffix in VERILOG_SUFFIXES:
@@ -89,6 +92,8 @@ def read_netlist(path: str | os.PathLike, words: int | None = None, width: int |
         return read_aiger(path, words, width)
     if suffix == ".blif":
         return read_blif(path, words, width)
+    if suffix == BRISTOL_SUFFIX:
+        return read_bristol(path, words, width)
     return parse_netlist(read_file_bytes(path), str(path))
 
 

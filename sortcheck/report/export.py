@@ -14,6 +14,11 @@ the property holds, with comments that map variables back to channels (or words 
 * gate circuits, SMT-LIB 2: the ``smt`` engine's gate-by-gate bit-vector
   formula (:mod:`sortcheck.engines.gates.smt`) on the circuit's own words.
 
+It also writes the netlist itself for other tools (:data:`NETLIST_FORMATS`):
+Bristol Fashion (:mod:`sortcheck.load.bristol`; a comparator network is
+lowered to gates on words of ``width`` bits first, in the ``xor`` style unless
+another is asked for) and Verilog (:mod:`sortcheck.load.verilog_out`).
+
 >>> from sortcheck.model import ComparatorNetwork, Sorts
 >>> text = export_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "smtlib")
 >>> text.splitlines()[0]
@@ -26,13 +31,23 @@ from sortcheck.engines.networks.cnf import annotated_dimacs, dimacs
 from sortcheck.engines.smt import default_width, smtlib_text
 from sortcheck.engines.gates.smt import circuit_refusal, circuit_smtlib_text
 from sortcheck.errors import UsageError
+from sortcheck.load.bristol import dump_bristol
+from sortcheck.load.verilog_out import dump_verilog
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property
 
-FORMATS = ("dimacs", "smtlib")
+NETLIST_FORMATS = ("bristol", "verilog")
+"""Formats that write the netlist itself rather than a verification condition."""
+
+FORMATS = ("dimacs", "smtlib") + NETLIST_FORMATS
 
 
-def export_text(netlist: Netlist, prop: Property, to: str, source: str | None = None) -> str:
-    """The verification condition of ``netlist`` and ``prop`` in format ``to`` (``dimacs`` or ``smtlib``).
+def export_text(netlist: Netlist, prop: Property, to: str, source: str | None = None, width: int | None = None,
+                style: str | None = None) -> str:
+    """The verification condition of ``netlist`` and ``prop`` in format ``to`` (``dimacs`` or ``smtlib``), or
+    the netlist itself (``bristol``, ``verilog``; words compare as two's complement when ``prop`` is signed).
+
+    ``width`` and ``style`` lower a comparator network to gates for Bristol Fashion (the width is needed)
+    and give a network's Verilog module its default word width.
 
     Raises
     ------
@@ -41,6 +56,8 @@ def export_text(netlist: Netlist, prop: Property, to: str, source: str | None = 
     """
     if to not in FORMATS:
         raise UsageError(f"unknown export format {to!r} (one of {', '.join(FORMATS)})", "--to")
+    if to in NETLIST_FORMATS:
+        return netlist_text(netlist, prop, to, source, width, style)
     if isinstance(netlist, ComparatorNetwork):
         if isinstance(prop, PartialSort):
             raise UsageError("partial-sort applies to gate circuits only", source, "--property")
@@ -89,3 +106,23 @@ def _circuit_dimacs(circuit: Netlist, prop: Property, source: str | None) -> str
                          "circuit CNF of sortcheck.engines.gates.threshold.spec)", source) from None
     clauses, pool, comments = gate_violation_cnf(circuit, prop)
     return dimacs(clauses, pool, [*comments, "unsatisfiable exactly when the circuit meets: " + prop.describe()])
+
+
+def netlist_text(netlist: Netlist, prop: Property, to: str, source: str | None = None, width: int | None = None,
+                 style: str | None = None) -> str:
+    """The netlist as Bristol Fashion or Verilog (see :func:`export_text`).
+
+    >>> from sortcheck.model import ComparatorNetwork, Sorts
+    >>> netlist_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "bristol").strip()
+    Traceback (most recent call last):
+    ...
+    sortcheck.errors.UsageError: --width: a comparator network needs a word width to become Bristol Fashion gates
+    """
+    if to == "verilog":
+        return dump_verilog(netlist, width=width, signed=prop.signed)
+    if isinstance(netlist, ComparatorNetwork) and width is None:
+        raise UsageError("a comparator network needs a word width to become Bristol Fashion gates", source, "--width")
+    try:
+        return dump_bristol(netlist, width=width, style=style or "xor", signed=prop.signed)
+    except ValueError as error:
+        raise UsageError(str(error), source) from None
