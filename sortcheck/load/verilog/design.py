@@ -232,6 +232,10 @@ def _build(synthesized: Synthesized, elaboration: Elaboration, cells, flip_flops
     source = elaboration.files[0]
     input_bits = [(port, index, bit) for port in data_ports for index, bit in enumerate(port.bits)]
     if words is None and width is None:
+        if len(data_ports) == 1 and len(data_ports[0].bits) > 1:
+            raise VerilogError(f"the one data input port '{data_ports[0].name}' ({len(data_ports[0].bits)} bits) "
+                               "would be a single word; give --words N --width W to cut it into words (word 0 in "
+                               "its least significant bits)", source)
         widths = sorted({len(port.bits) for port in data_ports})
         if len(widths) > 1:
             listed = ", ".join(f"{port.name} {len(port.bits)}" for port in data_ports)
