@@ -46,6 +46,7 @@ from sortcheck.engines.solving import INTERRUPTIBLE_SOLVER
 from sortcheck.explain.gate_flips import wrong_bits
 from sortcheck.explain.gate_inputs import CircuitFailures, random_raw_inputs, solve_in_budget, to_raw, to_values
 from sortcheck.explain.gate_repair_cnf import MAX_TABLE_INPUTS, RepairCnf
+from sortcheck.explain.gate_suspects import gate_place, place_json
 from sortcheck.explain.gate_suspects import Suspect, rank_suspects
 from sortcheck.explain.repair import RepairOutcome
 from sortcheck.load.locate import line_of
@@ -64,16 +65,15 @@ class GateChange:
     index: int
     op: str
     replaced: str
-    line: int | None = None
+    line: int | str | None = None  # the line in the netlist file, or the design's ``file:line``
     kind = "op"
 
     def describe(self) -> str:
-        where = f"gates[{self.index}]" + ("" if self.line is None else f", line {self.line}")
-        return f"change gate {self.gate!r} ({where}) from {self.replaced} to {self.op}"
+        return f"change gate {self.gate!r} ({gate_place(self.index, self.line)}) from {self.replaced} to {self.op}"
 
     def to_json(self) -> dict[str, Any]:
         return {"kind": self.kind, "gate": self.gate, "index": self.index, "op": self.op,
-                "replaced": self.replaced, "line": self.line}
+                "replaced": self.replaced, **place_json(self.line)}
 
 
 @dataclass(frozen=True)
@@ -182,14 +182,18 @@ def _as_runs(raw: tuple[int, ...], prop: Merges, width: int) -> tuple[int, ...]:
 
 
 class _Lines(dict):
-    """Line numbers of gates in the file text, found on first use (finding one walks the text)."""
+    """Line numbers of gates in the file text, found on first use (finding one walks the text); for a
+    circuit made from a design, the gate's ``file:line`` in its sources."""
 
-    def __init__(self, text: str | None, index: dict[str, int]):
+    def __init__(self, text: str | None, index: dict[str, int], places: dict | None = None):
         super().__init__()
-        self.text, self.index = text, index
+        self.text, self.index, self.places = text, index, places or {}
 
-    def __missing__(self, name: str) -> int | None:
-        self[name] = line_of(self.text, f"gates[{self.index[name]}]") if self.text else None
+    def __missing__(self, name: str) -> int | str | None:
+        if name in self.places:
+            self[name] = self.places[name]
+        else:
+            self[name] = line_of(self.text, f"gates[{self.index[name]}]") if self.text else None
         return self[name]
 
 
@@ -226,7 +230,7 @@ def repair_circuit(circuit: GateCircuit, prop: Property | None = None, budget: B
     prop = prop or circuit.claim or DEFAULT_PROPERTY
     check_fits(prop, circuit, None)
     index = {gate.out: position for position, gate in enumerate(circuit.gates)}
-    lines = _Lines(text, index)
+    lines = _Lines(text, index, circuit.source_places)
     counts = {"tried": 0, "verifications": 0, "added": 0, "undecided": 0}
     bank_size = 0
 

@@ -19,6 +19,22 @@ from sortcheck.explain.gate_flips import flip_counts
 from sortcheck.model import GateCircuit, Property
 
 
+def gate_place(index: int, line: int | str | None) -> str:
+    """Where a gate is: its place in the netlist, and its line there or its ``file:line`` in a design.
+
+    >>> gate_place(3, 20), gate_place(3, "sorter.v:14"), gate_place(3, None)
+    ('gates[3], line 20', 'gates[3], from sorter.v:14', 'gates[3]')
+    """
+    if line is None:
+        return f"gates[{index}]"
+    return f"gates[{index}], line {line}" if isinstance(line, int) else f"gates[{index}], from {line}"
+
+
+def place_json(line: int | str | None) -> dict:
+    """``{"line": N}`` for a line of the netlist file, ``{"line": None, "source": "file:line"}`` for a design."""
+    return {"line": line} if not isinstance(line, str) else {"line": None, "source": line}
+
+
 @dataclass(frozen=True)
 class Suspect:
     """A gate that may be at fault, with the evidence for it.
@@ -44,7 +60,7 @@ class Suspect:
                 self.distance if self.distance is not None else 1 << 30, self.index)
 
     def describe(self) -> str:
-        where = f"gates[{self.index}]" + ("" if self.line is None else f", line {self.line}")
+        where = gate_place(self.index, self.line)
         if self.ops:
             evidence = f"as {' or '.join(self.ops)} it gets every tried input right"
         elif self.function:
@@ -58,7 +74,7 @@ class Suspect:
         return f"{self.gate!r} ({self.op}, {where}): {evidence}"
 
     def to_json(self) -> dict[str, Any]:
-        return {"gate": self.gate, "index": self.index, "op": self.op, "line": self.line, "ops": list(self.ops),
+        return {"gate": self.gate, "index": self.index, "op": self.op, **place_json(self.line), "ops": list(self.ops),
                 "function": self.function, "explains": self.explains, "distance": self.distance}
 
 

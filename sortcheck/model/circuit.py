@@ -126,6 +126,8 @@ class GateCircuit:
     #: Where the circuit came from when a front end made it (a Verilog design: top module, Yosys, latency,
     #: the ports of each word); None for netlist files.
     origin: dict | None = field(default=None, compare=False)
+    #: The source place (``file:line``) of each gate, by gate name, when a front end knows it (Verilog).
+    source_places: dict | None = field(default=None, compare=False, repr=False)
 
     @property
     def words(self) -> int:

@@ -250,7 +250,13 @@ def _build(synthesized: Synthesized, elaboration: Elaboration, cells, flip_flops
             from None
     naming = _Naming(synthesized.module, {bit: name for (_, _, bit), name in zip(input_bits, names)})
     aliases = {ff.output: ff.data for ff in flip_flops}
-    gates = [gate for cell in cells for gate in _cell_gates(cell, naming, aliases)]
+    gates, places = [], {}
+    for cell in cells:
+        made = _cell_gates(cell, naming, aliases)
+        gates += made
+        file, line = split_src(str(cell.get("attributes", {}).get("src", "")).split("|")[0])
+        if file and line:
+            places.update((gate.out, f"{file}:{line}") for gate in made)
     output_bits = [(port, index, bit) for port in outputs for index, bit in enumerate(port.bits)]
     try:
         output = output_words([naming.signal(bit, aliases) for _, _, bit in output_bits], inputs[0].width, source)
@@ -269,7 +275,7 @@ def _build(synthesized: Synthesized, elaboration: Elaboration, cells, flip_flops
     }
     claim = Sorts(signed=True) if origin["signed_ports"] else None
     return GateCircuit(inputs, tuple(gates), output, name=synthesized.top, description=describe_origin(origin),
-                       claim=claim, origin=origin)
+                       claim=claim, origin=origin, source_places=places)
 
 
 class _Naming:
