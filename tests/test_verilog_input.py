@@ -317,3 +317,19 @@ def test_a_network_written_as_verilog_is_read_back_and_proved(tmp_path):
     assert status == 1
     example = result["counterexample"]
     assert example["output"] != sorted(example["input"])
+
+
+def test_repair_names_the_source_line_of_the_gate_it_changes(tmp_path):
+    design = tmp_path / "pair.v"
+    design.write_text("module pair(input [3:0] a, b, output [3:0] lo, hi);\n"
+                      "  wire swap = a > b;\n"
+                      "  assign lo = swap ? b : a;\n"
+                      "  assign hi = swap ? b : a;\n"  # the fault: should be swap ? a : b
+                      "endmodule\n")
+    status, out, _ = run("repair", design, "--format", "json", "--timeout", "60")
+    repair = json.loads(out)["results"][0]["repair"]
+    assert status in (0, 1, 3)
+    places = [entry.get("source") for entry in repair.get("suspects", []) + repair.get("changes", [])]
+    assert places and all(place is None or re.match(rf"^{re.escape(str(design))}:[2-4]$", place)
+                          for place in places), places
+    assert any(place is not None for place in places)
