@@ -43,6 +43,7 @@ import netlist_reference as independent
 from reference import breaks
 from sortcheck.api import check, load
 from sortcheck.model import Median, PartialSort, property_from_json
+from yosys_eval import parse_evaluations, port_value
 
 ROOT = Path(__file__).resolve().parent.parent
 RTL = ROOT / "corpus" / "rtl"
@@ -270,40 +271,6 @@ def _evaluation_inputs(design) -> list[list[int]]:
     return rows + [failing or [0] * design.words]
 
 
-def _parse_evaluations(text: str) -> dict[tuple[str, int], list[str]]:
-    """(design, case) -> the output port values Yosys printed, as printed.
-
-    ``eval`` prints ``Eval result: \\port = 64'0101...`` (binary with its width), or a plain decimal
-    number for ports of up to 32 bits.
-    """
-    results: dict[tuple[str, int], list[str]] = {}
-    key = None
-    for line in text.splitlines():
-        marker = re.match(r"^CASE (\S+) (\d+)$", line.strip())
-        if marker:
-            key = (marker.group(1), int(marker.group(2)))
-            results[key] = []
-            continue
-        value = re.match(r"^\s*Eval result: \\?\S+ = (\S+?)\.?$", line)
-        if value and key is not None:
-            results[key].append(value.group(1))
-    return results
-
-
-def _port_value(printed: str, bits: int) -> int:
-    """The value of a port of ``bits`` bits from what ``eval`` printed (every bit must be 0 or 1).
-
-    >>> _port_value("8'00000101", 8), _port_value("5", 8), _port_value("-1", 4)
-    (5, 5, 15)
-    """
-    sized = re.match(r"^(\d+)'([01]+)$", printed)
-    if sized:
-        assert int(sized.group(1)) == bits, printed
-        return int(sized.group(2), 2)
-    assert re.match(r"^-?\d+$", printed), f"not a defined value: {printed}"
-    return int(printed) % (1 << bits)
-
-
 @pytest.fixture(scope="module")
 def yosys_session(tmp_path_factory):
     """Yosys, once for the session: evaluate the Verilog of ``EVALUATED`` (one process), and synthesize
@@ -325,7 +292,7 @@ def yosys_session(tmp_path_factory):
             lines += _eval_lines(design, case, inputs)
             cases[(design.top, case)] = inputs
     synthesize.run_yosys([program], "\n".join(lines) + "\n", scratch)
-    printed = _parse_evaluations((scratch / "eval.txt").read_text(encoding="utf-8"))
+    printed = parse_evaluations((scratch / "eval.txt").read_text(encoding="utf-8"))
     folder = tmp_path_factory.mktemp("rtl-again")
     again = [synthesize.design_named(top) for top in RESYNTHESIZED]
     if PROVE:
@@ -339,7 +306,7 @@ def _split_ports(design, printed: list[str]) -> list[int]:
     """Output words from the output ports' values (ports in declaration order, words low bits first)."""
     packed, position = 0, 0
     for (_, bits), value in zip(design.outputs, printed, strict=True):
-        packed |= _port_value(value, bits) << position
+        packed |= port_value(value, bits) << position
         position += bits
     return [(packed >> (design.width * k)) & ((1 << design.width) - 1) for k in range(output_words(design))]
 

@@ -23,6 +23,7 @@ from sortcheck.load.verilog_out import dump_verilog, module_name, port_names
 from sortcheck.model import ComparatorNetwork
 from sortcheck.model.circuit_builds import build_circuit
 from sortcheck.model.families import build_family
+from yosys_eval import parse_evaluations, port_value
 
 GATES = "AND,NAND,OR,NOR,XOR,XNOR,MUX"
 EVALUATIONS = 6
@@ -68,31 +69,6 @@ def _values(design: Design, rng: random.Random) -> list[list[int]]:
     return [[rng.randint(low, high) for _ in range(design.words)] for _ in range(EVALUATIONS)]
 
 
-def _printed_values(text: str) -> dict[tuple[str, int], list[str]]:
-    """(design, case) -> the values ``eval`` printed for its output ports, in order."""
-    results, key = {}, None
-    for line in text.splitlines():
-        marker = re.match(r"^CASE (\S+) (\d+)$", line.strip())
-        if marker:
-            key = (marker.group(1), int(marker.group(2)))
-            results[key] = []
-            continue
-        value = re.match(r"^\s*Eval result: \\?\S+ = (\S+?)\.?$", line)
-        if value and key is not None:
-            results[key].append(value.group(1))
-    return results
-
-
-def _port_value(printed: str, bits: int) -> int:
-    """An unsigned value from what ``eval`` printed: ``3'101`` (binary with its width) or a decimal."""
-    sized = re.match(r"^(\d+)'([01]+)$", printed)
-    if sized:
-        assert int(sized.group(1)) == bits, printed
-        return int(sized.group(2), 2)
-    assert re.match(r"^-?\d+$", printed), f"not a defined value: {printed}"
-    return int(printed) % (1 << bits)
-
-
 @pytest.fixture(scope="module")
 def yosys_results(tmp_path_factory):
     """Export every design with the CLI, then one Yosys run: evaluate each module, synthesize it to BLIF."""
@@ -121,7 +97,7 @@ def yosys_results(tmp_path_factory):
     result = subprocess.run([program, "-q", "-s", "script.ys"], cwd=folder, capture_output=True, text=True,
                             timeout=300)
     assert result.returncode == 0, result.stdout + result.stderr
-    printed = _printed_values((folder / "eval.txt").read_text())
+    printed = parse_evaluations((folder / "eval.txt").read_text())
     return folder, {key: (values, printed[key]) for key, values in cases.items()}
 
 
@@ -137,7 +113,7 @@ def test_yosys_simulation_of_the_exported_verilog_agrees_with_sorted(design, yos
     _, evaluations = yosys_results
     for case in range(EVALUATIONS):
         values, printed = evaluations[(design.name, case)]
-        outputs = [_port_value(text, design.width) for text in printed]
+        outputs = [port_value(text, design.width) for text in printed]
         assert len(outputs) == design.words
         unsigned = [v % (1 << design.width) for v in values]
         if design.signed:

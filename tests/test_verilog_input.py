@@ -22,6 +22,7 @@ import pytest
 
 import netlist_reference as independent
 from cli_runner import run
+from yosys_eval import parse_evaluations, port_value
 from sortcheck.engines import Budget
 from sortcheck.engines.equivalence import equivalent
 from sortcheck.load import read_netlist
@@ -95,7 +96,7 @@ def _eval_script(inputs: list[list[int]]) -> str:
     lines = [f"read_verilog -sv {LADDER}", "hierarchy -top ladder_sort -chparam N 4 -chparam W 5", "proc", "flatten"]
     for case, words in enumerate(inputs):
         packed = sum(value << (5 * k) for k, value in enumerate(words))
-        lines += [f"tee -q -a eval.txt log CASE {case}", f"tee -q -a eval.txt eval -set keys 20'h{packed:x} -show sorted"]
+        lines += [f"tee -q -a eval.txt log CASE ladder {case}", f"tee -q -a eval.txt eval -set keys 20'h{packed:x} -show sorted"]
     return "\n".join(lines) + "\n"
 
 
@@ -103,12 +104,11 @@ def test_the_loaded_circuit_computes_what_yosys_simulation_of_the_source_compute
     rng = np.random.default_rng(7)
     inputs = rng.integers(0, 32, size=(6, 4)).tolist() + [[31, 0, 31, 0], [3, 3, 3, 3]]
     _yosys(_eval_script(inputs), tmp_path)
-    printed = re.findall(r"Eval result: \\?sorted = (\S+?)\.?$", (tmp_path / "eval.txt").read_text(), re.MULTILINE)
-    assert len(printed) == len(inputs)
+    evaluations = parse_evaluations((tmp_path / "eval.txt").read_text())
+    printed = [evaluations[("ladder", case)][0] for case in range(len(inputs))]
     circuit = read_netlist(LADDER, 4, 5, Elaboration((LADDER,), "ladder_sort", (("N", "4"), ("W", "5"))))
     for words, text in zip(inputs, printed):
-        sized = re.match(r"^(\d+)'([01]+)$", text)
-        value = int(sized.group(2), 2) if sized else int(text) % (1 << 20)
+        value = port_value(text, 20)
         expected = [(value >> (5 * k)) & 31 for k in range(4)]
         assert circuit.evaluate(words) == expected == sorted(words)
 
