@@ -333,3 +333,23 @@ def test_repair_names_the_source_line_of_the_gate_it_changes(tmp_path):
     assert places and all(place is None or re.match(rf"^{re.escape(str(design))}:[2-4]$", place)
                           for place in places), places
     assert any(place is not None for place in places)
+
+
+def test_valid_flags_beside_the_words_are_left_out_and_said_so(tmp_path):
+    design = tmp_path / "vpipe.v"
+    design.write_text(
+        "module vpipe #(parameter W = 6) (input clk, input valid_in, input [W-1:0] a, b,\n"
+        "                                 output reg valid_out, output reg [W-1:0] lo, hi);\n"
+        "  always @(posedge clk) begin\n"
+        "    valid_out <= valid_in;\n"
+        "    lo <= (a < b) ? a : b; hi <= (a < b) ? b : a;\n"
+        "  end\nendmodule\n")
+    status, result, _ = _report(str(design))
+    assert status == 0 and result["stats"]["words"] == 2
+    assert result["stats"]["source"]["side_band"] == {"inputs": ["valid_in"], "outputs": ["valid_out"]}
+    assert "left out and not checked: valid_in, valid_out" in result["scope"]
+    mode = tmp_path / "mode.v"  # a 1-bit input the words depend on is data, never left out
+    mode.write_text("module mode(input down, input [5:0] a, b, output [5:0] lo, hi);\n"
+                    "  wire swap = down ? a < b : b < a;\n"
+                    "  assign lo = swap ? b : a; assign hi = swap ? a : b;\nendmodule\n")
+    assert "different widths (down 1, a 6, b 6 bits)" in _error(str(mode))

@@ -63,14 +63,7 @@ def design_circuit(synthesized: Synthesized, elaboration: Elaboration, words: in
     source = elaboration.files[0]
     _refuse_state(synthesized.state_cells)
     module = synthesized.module
-    inputs = [_Port(name, port["bits"], bool(port.get("signed"))) for name, port in module["ports"].items()
-              if port["direction"] == "input"]
-    outputs = [_Port(name, port["bits"], False) for name, port in module["ports"].items()
-               if port["direction"] == "output"]
-    if any(port["direction"] == "inout" for port in module["ports"].values()):
-        raise VerilogError("inout ports are not supported", source)
-    if not outputs:
-        raise VerilogError(f"module '{synthesized.top}' has no output ports", source)
+    inputs, outputs = _ports(module, synthesized.top, source)
     gates, flip_flops = _cells(module)
     bit_names = {bit: port.bit_label(index) for port in inputs for index, bit in enumerate(port.bits)}
     readers = {bit for cell in gates for pin in GATE_CELLS[cell["type"]][0] for bit in cell["connections"][pin]}
@@ -83,8 +76,9 @@ def design_circuit(synthesized: Synthesized, elaboration: Elaboration, words: in
     held_ports = {port.name for port in inputs if port.bits and all(
         bit_names[bit] in controls.held or bit_names[bit] == controls.clock for bit in port.bits)}
     data_ports = [port for port in inputs if port.name not in held_ports]
-    unused = _unused_narrow_ports(data_ports, readers, words, width)
-    data_ports = [port for port in data_ports if port.name not in unused]
+    side_inputs, side_outputs = _side_band(order, gates, flip_flops, data_ports, outputs, width)
+    data_ports = [port for port in data_ports if port.name not in side_inputs]
+    outputs = [port for port in outputs if port.name not in side_outputs]
     if not data_ports:
         raise VerilogError(f"module '{synthesized.top}' has no data input ports", source)
     latency = _latency(order, gates, flip_flops, data_ports, outputs, source)
@@ -92,7 +86,51 @@ def design_circuit(synthesized: Synthesized, elaboration: Elaboration, words: in
         "latency": latency, "clock": controls.clock,
         "held": {name: value for name, (value, _) in sorted(controls.held.items())},
         "held_roles": {name: role for name, (_, role) in sorted(controls.held.items())},
-        "registers": len(flip_flops), "unused_inputs": sorted(unused)})
+        "registers": len(flip_flops), "side_band": {"inputs": side_inputs, "outputs": side_outputs}})
+
+
+def _ports(module: dict, top: str, source: str) -> tuple[list[_Port], list[_Port]]:
+    """The input and output ports in declaration order."""
+    if any(port["direction"] == "inout" for port in module["ports"].values()):
+        raise VerilogError("inout ports are not supported", source)
+    inputs = [_Port(name, port["bits"], bool(port.get("signed"))) for name, port in module["ports"].items()
+              if port["direction"] == "input"]
+    outputs = [_Port(name, port["bits"], False) for name, port in module["ports"].items()
+               if port["direction"] == "output"]
+    if not outputs:
+        raise VerilogError(f"module '{top}' has no output ports", source)
+    return inputs, outputs
+
+
+def _side_band(order, gates, flip_flops, data_ports, outputs, width) -> tuple[list[str], list[str]]:
+    """1-bit ports beside words of several bits that the words do not depend on: left out, and said so.
+
+    A 1-bit output port (a valid or done flag) is not a word; a 1-bit input port (a valid flag, an unused
+    input) is left out only if no bit of a word output depends on it, so leaving it out cannot hide
+    anything the words compute.  With words of one bit nothing is left out.
+    """
+    if not any(len(port.bits) > 1 for port in data_ports) and (width or 1) == 1:
+        return [], []
+    side_outputs = [port.name for port in outputs if len(port.bits) == 1]
+    narrow = [port for port in data_ports if len(port.bits) == 1]
+    if not narrow:
+        return [], side_outputs
+    cone: dict = {port.bits[0]: 1 << index for index, port in enumerate(narrow)}
+    for kind, index in order:
+        if kind == "ff":
+            cone[flip_flops[index].output] = cone.get(flip_flops[index].data, 0)
+        else:
+            cell = gates[index]
+            mask = 0
+            for pin in GATE_CELLS[cell["type"]][0]:
+                mask |= cone.get(cell["connections"][pin][0], 0)
+            cone[cell["connections"]["Y"][0]] = mask
+    read = 0
+    for port in outputs:
+        if port.name not in side_outputs:
+            for bit in port.bits:
+                read |= cone.get(bit, 0)
+    return [port.name for index, port in enumerate(narrow) if not read >> index & 1], side_outputs
 
 
 def _refuse_state(state_cells) -> None:
@@ -135,13 +173,6 @@ def _cell_label(name: str, cell: dict, module: dict) -> str:
             index = net["bits"].index(output)
             return wire if len(net["bits"]) == 1 else f"{wire}[{index + net.get('offset', 0)}]"
     return name.lstrip("\\")
-
-
-def _unused_narrow_ports(ports: list[_Port], readers: set, words, width) -> set[str]:
-    """1-bit input ports nothing reads, beside wider data ports (an unused clock of a combinational design)."""
-    if words is not None or width is not None or not any(len(port.bits) > 1 for port in ports):
-        return set()
-    return {port.name for port in ports if len(port.bits) == 1 and port.bits[0] not in readers}
 
 
 def _dependencies(gates, flip_flops) -> dict:
@@ -362,7 +393,9 @@ def describe_origin(origin: dict, listed: int = 8) -> str:
         shown = [f"{row['word']} = {row['bits']}" for row in rows[:listed]]
         return ", ".join(shown) + (f", ... ({len(rows)} words)" if len(rows) > listed else "")
 
-    return text + f" Words: {listing(origin['inputs'])}; outputs: {listing(origin['outputs'])}."
+    text += f" Words: {listing(origin['inputs'])}; outputs: {listing(origin['outputs'])}."
+    side = origin["side_band"]["inputs"] + origin["side_band"]["outputs"]
+    return text + (f" Left out (1-bit ports beside the words): {', '.join(side)}." if side else "")
 
 
 def latency_words(origin: dict) -> str:
@@ -391,8 +424,10 @@ def design_scope(origin: dict) -> str:
                  f"to the outputs {origin['latency']} {cycles} later, clocked by {origin['clock']}{held}; not "
                  f"checked: the outputs of the first {origin['latency']} {cycles} after start-up"
                  + (f" or after {' or '.join(resets)} is released, and while it is asserted" if resets else ""))
-    if origin["unused_inputs"]:
-        text += f"; unused 1-bit inputs left out: {', '.join(origin['unused_inputs'])}"
+    side = origin["side_band"]["inputs"] + origin["side_band"]["outputs"]
+    if side:
+        text += (f"; 1-bit ports beside the words, left out and not checked: {', '.join(side)} (no word output "
+                 "depends on those inputs)")
     if origin["undriven_bits"]:
         text += f"; {origin['undriven_bits']} undriven (x) bits were read as 0"
     return text
