@@ -29,7 +29,7 @@ from sortcheck.explain.gate_repair import repair_circuit
 from sortcheck.explain.repair import repair_network
 from sortcheck.load import dump_netlist, parse_property, read_netlist
 from sortcheck.load.bristol import dump_bristol
-from sortcheck.load.verilog_out import dump_verilog
+from sortcheck.load.verilog.write import dump_verilog
 from sortcheck.load.config import CheckRequest, expand, is_verilog, parameter_value, read_project_config, verilog_design
 
 from sortcheck.model import DEFAULT_PROPERTY, ComparatorNetwork, GateCircuit, check_fits

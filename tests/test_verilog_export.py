@@ -19,7 +19,7 @@ import pytest
 
 from cli_runner import run
 from sortcheck.load import dump_netlist
-from sortcheck.load.verilog_out import dump_verilog, module_name, port_names
+from sortcheck.load.verilog.write import dump_verilog, module_name, port_names
 from sortcheck.model import ComparatorNetwork
 from sortcheck.model.circuit_builds import build_circuit
 from sortcheck.model.families import build_family

@@ -17,7 +17,7 @@ the property holds, with comments that map variables back to channels (or words 
 It also writes the netlist itself for other tools (:data:`NETLIST_FORMATS`):
 Bristol Fashion (:mod:`sortcheck.load.bristol`; a comparator network is
 lowered to gates on words of ``width`` bits first, in the ``xor`` style unless
-another is asked for) and Verilog (:mod:`sortcheck.load.verilog_out`).
+another is asked for) and Verilog (:mod:`sortcheck.load.verilog.write`).
 
 >>> from sortcheck.model import ComparatorNetwork, Sorts
 >>> text = export_text(ComparatorNetwork(2, ((0, 1),)), Sorts(), "smtlib")
@@ -32,7 +32,7 @@ from sortcheck.engines.smt import default_width, smtlib_text
 from sortcheck.engines.gates.smt import circuit_refusal, circuit_smtlib_text
 from sortcheck.errors import UsageError
 from sortcheck.load.bristol import dump_bristol
-from sortcheck.load.verilog_out import dump_verilog
+from sortcheck.load.verilog.write import dump_verilog
 from sortcheck.model import ComparatorNetwork, GateCircuit, Netlist, PartialSort, Property
 
 NETLIST_FORMATS = ("bristol", "verilog")

@@ -8,7 +8,8 @@ flattened to their combinational function (:mod:`sortcheck.load.verilog.register
 
 from __future__ import annotations
 
-from sortcheck.load.verilog.design import describe_origin, design_circuit, design_scope, latency_words
+from sortcheck.load.verilog.design import design_circuit
+from sortcheck.load.verilog.origin import describe_origin, design_scope, latency_words
 from sortcheck.load.verilog.yosys import Elaboration, VerilogError, synthesize
 from sortcheck.model import GateCircuit
 
