@@ -10,7 +10,7 @@ real input in scope, so a network that fails one of them is really broken.
 
 from __future__ import annotations
 
-from itertools import combinations
+from itertools import combinations, islice
 from typing import Iterator, Sequence
 
 import numpy as np
@@ -20,6 +20,9 @@ from sortcheck.model import ComparatorNetwork, Merges, Property, Sorts
 from sortcheck.model.semantics import applies
 
 Comparator = tuple[int, int]
+
+#: Most inputs run on the network in one round of the search for failing inputs.
+_POOL = 16384
 
 
 class Bank:
@@ -80,8 +83,13 @@ def _neighbours(vector: tuple[int, ...], rng: np.random.Generator, cap: int) -> 
     n = len(vector)
     for i in range(n):
         yield vector[:i] + (1 - vector[i],) + vector[i + 1:]
-    pairs = list(combinations(range(n), 2)) if n * (n - 1) // 2 <= cap else \
-        [tuple(sorted(rng.choice(n, 2, replace=False).tolist())) for _ in range(cap)]
+    if n * (n - 1) // 2 <= cap:
+        pairs = list(combinations(range(n), 2))
+    else:  # two distinct channels each: the second drawn from the n - 1 others
+        first = rng.integers(0, n, cap)
+        second = rng.integers(0, n - 1, cap)
+        second += second >= first
+        pairs = zip(first.tolist(), second.tolist())
     for i, j in pairs:
         flipped = list(vector)
         flipped[i], flipped[j] = 1 - flipped[i], 1 - flipped[j]
@@ -125,9 +133,10 @@ def seed_bank(network: ComparatorNetwork, prop: Property, counterexample: Sequen
     bank.add(counterexample)
     frontier, tried = [tuple(counterexample)], set(bank.vectors)
     while frontier and len(bank.vectors) < limit:
-        pool = [v for seed in frontier for v in _neighbours(seed, rng, 2048) if v not in tried and applies(prop, v)]
+        near = (v for seed in frontier for v in _neighbours(seed, rng, 2048) if v not in tried and applies(prop, v))
+        pool = list(islice(near, _POOL))  # made lazily: 500 failing inputs of 256 channels have 1.2 million neighbours
         pool += _random_inputs(n, prop, rng, 256, sum(counterexample))
-        pool = [v for v in dict.fromkeys(pool) if v not in tried][:16384]
+        pool = [v for v in dict.fromkeys(pool) if v not in tried][:_POOL]
         tried.update(pool)
         if not pool:
             break
