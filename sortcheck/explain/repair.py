@@ -223,7 +223,7 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
         status = "budget" if first.stop == StopReason.TIMEOUT else "unknown"
         return outcome(status, f"the network itself could not be checked: {first.scope}")
     bank = seed_bank(network, prop, first.counterexample.input, options.bank_limit, options.random_inputs,
-                     options.complete_bank, options.seed)
+                     options.complete_bank, options.seed, budget)
     guide = guide_for(network.comparators, network.channels, prop, first.counterexample.input)
     space, narrowed = search_space(network, prop, guide, options.max_candidates)
     everywhere, searched = search_space(network, prop, guide, float("inf"))
