@@ -101,6 +101,11 @@ def _add_design_options(parser: argparse.ArgumentParser) -> None:
                         help="Verilog: a parameter of the top module (repeatable)")
 
 
+#: Default time budget of ``repair``, in seconds (a one-change repair of merge exchange 256 takes under 10 s;
+#: a search of two changes in a large network can take hours).
+REPAIR_SECONDS = 300.0
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="sortcheck", description="Prove that comparator networks and sorting circuits "
                      "sort, merge, select or take the median, or find an input that breaks them.")
@@ -207,7 +212,9 @@ def build_parser() -> argparse.ArgumentParser:
     repair.add_argument("path", metavar="PATH")
     repair.add_argument("--output", metavar="FIXED.json", help="write the repaired netlist here")
     repair.add_argument("--property", metavar="SPEC")
-    repair.add_argument("--timeout", type=_positive_seconds, metavar="SECONDS")
+    repair.add_argument("--timeout", type=_positive_seconds, default=REPAIR_SECONDS, metavar="SECONDS",
+                        help=f"time budget of the whole search (default: {REPAIR_SECONDS:g} s); when it runs out "
+                             "the outcome says so (exit 3) and nothing is offered as a repair")
     repair.add_argument("--format", choices=("text", "json"), default="text")
     repair.add_argument("--jobs", type=_jobs, default=None, metavar="N",
                         help="worker processes for the search of two changes in a network, split into pieces "

@@ -542,3 +542,61 @@ def test_a_dask_worker_gets_glibc_thresholds_that_suit_numpy(monkeypatch):
     distribute._roomier_allocator()
     distribute._roomier_allocator()  # once per process
     assert calls == [(-1, 64 << 20), (-3, 32 << 20)]  # M_TRIM_THRESHOLD, M_MMAP_THRESHOLD (glibc malloc.h)
+
+
+def random_network(n: int, per_channel: int, seed: int) -> ComparatorNetwork:
+    """A perfect matching, then ``per_channel * n`` random comparators (as ``tests/benchmarks/bench_distribute.py``)."""
+    rng = random.Random(seed)
+    comparators = [(i, i + 1) for i in range(0, n - 1, 2)]
+    for _ in range(per_channel * n):
+        comparators.append(tuple(sorted(rng.sample(range(n), 2))))
+    return ComparatorNetwork(n, tuple(comparators), name=f"random-{n}")
+
+
+def test_a_long_count_after_a_short_suffix_runs_in_pieces_on_two_processes(tmp_path, capsys):
+    """Random 40 channels, seed 11: the reduction leaves 156 million vectors but only 7 comparators after it, so
+    the work per vector besides the comparators decides the time (an estimate by comparators alone said 0.07 s
+    and the count ran in one process); counted on 2 processes it gives the count of one process."""
+    from sortcheck.cli import main
+
+    network = random_network(40, 1, 11)
+    path = tmp_path / "random-40.json"
+    write_netlist(network, path)
+    assert main(["check", str(path), "--count", "--jobs", "2", "--no-minimize", "--format", "json"]) == 1
+    (result,) = json.loads(capsys.readouterr().out)["results"]
+    assert result["figures"]["ran_on"] == "2 local processes" and result["figures"]["pieces"] >= 4
+    whole = EnumerateEngine().check(network, Sorts(), Budget(), Options(count=True))
+    assert result["figures"]["failing_inputs"] == whole.figures["failing_inputs"] > 0
+    assert tuple(result["counterexample"]["input"]) == whole.counterexample.input
+
+
+def test_a_split_count_matches_an_independent_count_and_the_smallest_input_is_reported(split_everything, tmp_path,
+                                                                                        capsys):
+    """Random 20 channels: the count of failing inputs on 2 processes (pieces of every 0-1 input) and through
+    ``check --count --jobs 2`` equals a count of all 2^20 inputs
+    evaluated comparator by comparator with numpy (no sortcheck code; the definition of ``breaks`` in
+    tests/reference.py, vectorised), and the reported input has the fewest ones or zeros of any failing input."""
+    from sortcheck.cli import main
+
+    split_everything(4)
+    n = 20
+    network = random_network(n, 1, 5)
+    inputs = ((np.arange(1 << n)[:, None] >> np.arange(n)) & 1).astype(np.int8)
+    wires = inputs.copy()
+    for a, b in network.comparators:
+        wires[:, a], wires[:, b] = np.minimum(wires[:, a], wires[:, b]), np.maximum(wires[:, a], wires[:, b])
+    failing = (wires[:, :-1] > wires[:, 1:]).any(axis=1)
+    ones = inputs[failing].sum(axis=1)
+    pieces = UNREDUCED.pieces(network, Sorts(), Options(count=True))  # 2^20 vectors: 16 units, 4 pieces
+    with LocalProcesses(2) as runner:
+        verdict = run_pieces(UNREDUCED, network, Sorts(), pieces, Budget(), Options(count=True), runner)
+    assert verdict.figures["ran_on"] == "2 local processes" and verdict.figures["pieces"] == 4
+    assert verdict.figures["failing_inputs"] == int(failing.sum()) > 0
+    path = tmp_path / "random-20.json"
+    write_netlist(network, path)
+    assert main(["check", str(path), "--count", "--jobs", "2", "--format", "json"]) == 1
+    (result,) = json.loads(capsys.readouterr().out)["results"]
+    assert result["figures"]["failing_inputs"] == int(failing.sum())
+    example = result["counterexample"]["input"]
+    assert breaks(Sorts(), example, run(network.comparators, example))
+    assert min(sum(example), n - sum(example)) == int(np.minimum(ones, n - ones).min())

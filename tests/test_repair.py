@@ -212,13 +212,14 @@ def test_moves_keep_the_orientation():
 
 
 def test_a_narrowed_search_says_so():
-    """Beyond ``max_candidates`` only positions around the sealing comparator are searched, and the outcome says so."""
-    network, options = merge_exchange(16), RepairOptions(max_candidates=3000)
-    near = without(network, 48)
-    outcome = repair_network(near, Sorts(), Budget.of(30), max_changes=1, options=options)
-    assert "positions" in outcome.searched
-    assert_verified_repair(near, Sorts(), outcome)
-    far = without(network, 33)  # its first counterexample is sealed far after the missing comparator
-    outcome = repair_network(far, Sorts(), Budget.of(30), max_changes=1, options=options)
+    """Every network within one change is searched whatever ``max_candidates`` says, unless even the candidates
+    that change every failing bank input are too many: then only positions around the sealing comparator are
+    searched, and the outcome says so."""
+    far = without(merge_exchange(16), 33)  # its first counterexample is sealed far after the missing comparator
+    outcome = repair_network(far, Sorts(), Budget.of(30), max_changes=1, options=RepairOptions(max_candidates=3000))
+    assert outcome.searched == "every network within one change"
+    assert_verified_repair(far, Sorts(), outcome)
+    one_input = RepairOptions(max_candidates=50, bank_limit=1, random_inputs=0, complete_bank=0)
+    outcome = repair_network(far, Sorts(), Budget.of(30), max_changes=1, options=one_input)
     assert outcome.status == "none" and outcome.searched in outcome.reason and "positions" in outcome.searched
     assert repair_network(far, Sorts(), Budget.of(30), max_changes=1).status == "repaired"

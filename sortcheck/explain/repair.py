@@ -14,14 +14,20 @@ ones), random inputs, and every counterexample a later check returns.  When
 the property speaks about few inputs (``RepairOptions.complete_bank``) the
 bank holds all of them.  Every candidate network is evaluated on the whole
 bank at once (all candidates at one position share the network's prefix, and
-64 inputs share a machine word); one that fails a bank input is dropped.  A
+64 inputs share a machine word); one that fails a bank input is dropped.
+Before that, a candidate that leaves some failing bank input unchanged at its
+position is dropped without being run, since it fails that input too
+(:mod:`sortcheck.explain.repair_scan`): that keeps the one-change stage of a
+network of 256 channels and 3,840 comparators, 127 million candidates, to
+seconds, so it always covers every network within one change.  A
 candidate that passes the bank is checked with :func:`sortcheck.engines.check`,
 and is offered only when that check proves it; when the check refutes it,
 its counterexample joins the bank.
 
 The order is fixed, so the same input gives the same repair: the first
 candidate, in this order, whose property holds (the changes, their order and
-the bank run are in :mod:`sortcheck.explain.repair_candidates`).
+the bank run are in :mod:`sortcheck.explain.repair_candidates` and
+:mod:`sortcheck.explain.repair_scan`).
 
 1. Fewer changes first.
 2. One change: by kind, ``reverse``, ``insert``, ``move``, ``delete`` (the
@@ -79,9 +85,13 @@ class RepairOptions:
         When the property speaks about at most this many 0-1 inputs, the bank
         holds all of them.
     max_candidates : int
-        Most candidates of one change per level; beyond it, only positions
-        around the sealing comparator (and, if still too many, inserts touching
-        a witness channel) are searched, and the outcome says so.
+        The one-change stage searches every network within one change unless
+        more than this many candidates change every failing bank input (see
+        :mod:`sortcheck.explain.repair_scan`); the two-change stage searches
+        every pair unless the one-change candidates are more than this many.
+        Beyond it, only positions around the sealing comparator (and, if still
+        too many, inserts touching a witness channel) are searched, and the
+        outcome says so.
     seed : int
         Seed of the random inputs.
     engine : str
@@ -132,6 +142,22 @@ class RepairOutcome:
                 "bank_inputs": self.bank_inputs, "counterexamples_added": self.counterexamples_added,
                 "undecided": self.undecided, "ran_on": self.ran_on, "pieces": self.pieces,
                 "seconds": round(self.seconds, 3)}
+
+
+def _searched(one_everywhere: bool, narrowed: str, two_changes: bool) -> str:
+    """What the search covered, in words: ``narrowed`` is the phrase of the two-change stage's space.
+
+    >>> _searched(True, "every network within the changes", True)
+    'every network within the changes'
+    >>> _searched(True, "changes at positions 3..9 of 20", True)
+    'every network within one change; two changes: changes at positions 3..9 of 20'
+    """
+    everything = narrowed == "every network within the changes"
+    if not one_everywhere or (everything and two_changes):
+        return narrowed
+    if not two_changes:
+        return "every network within one change"
+    return f"every network within one change; two changes: {narrowed}"
 
 
 def repair_network(network: ComparatorNetwork, prop: Property | None = None, budget: Budget = Budget(),
@@ -197,14 +223,16 @@ def repair_network(network: ComparatorNetwork, prop: Property | None = None, bud
         status = "budget" if first.stop == StopReason.TIMEOUT else "unknown"
         return outcome(status, f"the network itself could not be checked: {first.scope}")
     bank = seed_bank(network, prop, first.counterexample.input, options.bank_limit, options.random_inputs,
-                     options.complete_bank, options.seed)
+                     options.complete_bank, options.seed, budget)
     guide = guide_for(network.comparators, network.channels, prop, first.counterexample.input)
-    space, searched = search_space(network, prop, guide, options.max_candidates)
+    space, narrowed = search_space(network, prop, guide, options.max_candidates)
+    everywhere, searched = search_space(network, prop, guide, float("inf"))
     search = CandidateSearch(network, prop, budget, options.engine, bank, counts)
     for changes in range(1, max_changes + 1):
         if changes == 1:
-            found = search.one_change(space, guide)
+            found, used = search.one_change([everywhere, space], guide, options.max_candidates)
             one_change_candidates = counts.tried
+            searched = _searched(used is everywhere, narrowed, found is None and max_changes > 1)
         elif getattr(runner, "splits", runner is not None):
             pieces = two_change_pieces(search, space, guide, first.counterexample.input, options.engine,
                                        options.max_candidates, one_change_candidates)

@@ -2,24 +2,37 @@
 
 The bank holds inputs in the property's scope, packed 64 to a machine word
 per channel: all of them when the property speaks about few inputs, else
-the first counterexample, the failing inputs a bit-parallel search finds
-around it (Hamming distance 1 and 2 of every failing input found, random
-inputs of the same number of ones) and random inputs.  Every input in it is a
+the first counterexample, failing inputs sorted on the parts of the network
+that the ``sat`` engine's split proves to sort (:func:`frontier_failures`),
+the failing inputs a bit-parallel search finds around them (Hamming distance
+1 and 2 of every failing input found, random inputs of the same number of
+ones) and random inputs.  Every input in it is a
 real input in scope, so a network that fails one of them is really broken.
 """
 
 from __future__ import annotations
 
-from itertools import combinations
+from itertools import combinations, islice
 from typing import Iterator, Sequence
 
 import numpy as np
 
+from sortcheck.engines import Budget
 from sortcheck.engines.networks.bitslice import AllVectors, MergeInputs, apply_network, failure_mask
+from sortcheck.engines.networks.sat import proved_frontier
+from sortcheck.engines.networks.split import SortedParts
+from sortcheck.engines.solving import Interrupted
 from sortcheck.model import ComparatorNetwork, Merges, Property, Sorts
 from sortcheck.model.semantics import applies
 
 Comparator = tuple[int, int]
+
+#: Most inputs run on the network in one round of the search for failing inputs.
+_POOL = 16384
+#: Inputs sorted on the proved parts tried for failing ones (:func:`frontier_failures`), and the most seconds
+#: spent proving the parts (merge exchange 256: 0.2 s).
+FRONTIER_INPUTS = 16384
+FRONTIER_SECONDS = 10.0
 
 
 class Bank:
@@ -80,8 +93,13 @@ def _neighbours(vector: tuple[int, ...], rng: np.random.Generator, cap: int) -> 
     n = len(vector)
     for i in range(n):
         yield vector[:i] + (1 - vector[i],) + vector[i + 1:]
-    pairs = list(combinations(range(n), 2)) if n * (n - 1) // 2 <= cap else \
-        [tuple(sorted(rng.choice(n, 2, replace=False).tolist())) for _ in range(cap)]
+    if n * (n - 1) // 2 <= cap:
+        pairs = list(combinations(range(n), 2))
+    else:  # two distinct channels each: the second drawn from the n - 1 others
+        first = rng.integers(0, n, cap)
+        second = rng.integers(0, n - 1, cap)
+        second += second >= first
+        pairs = zip(first.tolist(), second.tolist())
     for i, j in pairs:
         flipped = list(vector)
         flipped[i], flipped[j] = 1 - flipped[i], 1 - flipped[j]
@@ -105,8 +123,45 @@ def _random_inputs(channels: int, prop: Property, rng: np.random.Generator, coun
     return vectors
 
 
+def frontier_failures(network: ComparatorNetwork, prop: Property, rng: np.random.Generator, count: int,
+                      budget: Budget) -> list[tuple[int, ...]]:
+    """Failing inputs among ``count`` inputs sorted on the proved parts just below the split's root (all of them
+    when fewer), in order; none when the budget runs out first.
+
+    Such an input passes through the proved parts unchanged, so it meets the
+    comparators after them as it is: these inputs exercise the part a fault
+    broke as its own inputs would (a removed comparator of merge exchange 128
+    fails none of 32,768 random inputs, but 2 % of these), and they differ
+    from each other far more than the neighbours of one counterexample.
+
+    >>> from sortcheck.model.families import merge_exchange
+    >>> broken = ComparatorNetwork(16, merge_exchange(16).comparators[:-1])
+    >>> found = frontier_failures(broken, Sorts(), np.random.default_rng(0), 4096, Budget())
+    >>> len(found) > 0 and all(broken.apply(list(v)) != sorted(v) for v in found)
+    True
+    """
+    try:
+        groups, _ = proved_frontier(network, budget)
+    except Interrupted:
+        return []
+    source = SortedParts(groups)
+    lanes = 64 * -(-min(count, source.total) // 64)
+    rows = np.empty((network.channels, lanes // 64), dtype=np.uint64)
+    if source.total <= count:
+        source.fill(0, lanes, rows)
+    else:
+        source.fill_ones(source.random_ones(rng, lanes), rows)
+    flags = failing(network.comparators, prop, rows, lanes)
+    found = []
+    for lane in np.flatnonzero(flags).tolist():
+        vector = tuple(((rows[:, lane // 64] >> np.uint64(lane % 64)) & np.uint64(1)).astype(int).tolist())
+        if applies(prop, vector):
+            found.append(vector)
+    return list(dict.fromkeys(found))
+
+
 def seed_bank(network: ComparatorNetwork, prop: Property, counterexample: Sequence[int], limit: int = 512,
-              random_inputs: int = 256, complete: int = 1024, seed: int = 0) -> Bank:
+              random_inputs: int = 256, complete: int = 1024, seed: int = 0, budget: Budget | None = None) -> Bank:
     """The initial bank: all inputs in scope when few, else failing inputs near the counterexample.
 
     >>> net = ComparatorNetwork(3, ((0, 1), (1, 2)))
@@ -123,11 +178,17 @@ def seed_bank(network: ComparatorNetwork, prop: Property, counterexample: Sequen
         bank.initial = len(bank.vectors)
         return bank
     bank.add(counterexample)
-    frontier, tried = [tuple(counterexample)], set(bank.vectors)
+    if not isinstance(prop, Merges) and limit > 1:
+        remaining = None if budget is None else budget.remaining()
+        spent = Budget.of(FRONTIER_SECONDS if remaining is None else min(FRONTIER_SECONDS, remaining))
+        for vector in frontier_failures(network, prop, rng, FRONTIER_INPUTS, spent)[:limit // 2]:
+            bank.add(vector)
+    frontier, tried = list(bank.vectors), set(bank.vectors)
     while frontier and len(bank.vectors) < limit:
-        pool = [v for seed in frontier for v in _neighbours(seed, rng, 2048) if v not in tried and applies(prop, v)]
+        near = (v for seed in frontier for v in _neighbours(seed, rng, 2048) if v not in tried and applies(prop, v))
+        pool = list(islice(near, _POOL))  # made lazily: 500 failing inputs of 256 channels have 1.2 million neighbours
         pool += _random_inputs(n, prop, rng, 256, sum(counterexample))
-        pool = [v for v in dict.fromkeys(pool) if v not in tried][:16384]
+        pool = [v for v in dict.fromkeys(pool) if v not in tried][:_POOL]
         tried.update(pool)
         if not pool:
             break

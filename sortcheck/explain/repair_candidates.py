@@ -1,12 +1,11 @@
-"""The candidates of a network repair: changes, the order they are tried in, and their run on the bank.
+"""The candidates of a network repair: changes and the order they are tried in.
 
 :class:`Change` is one edit of a comparator network (:func:`apply_changes`
 applies several).  :func:`guide_for` turns the diagnosis of a failing input
 into the search order, :func:`replacements`, :func:`search_space` and
-:func:`all_candidates` list the one-change candidates in that order, and
-:func:`scan` runs all candidates of a group of positions on the bank of 0-1
-inputs at once, keeping those that pass it.  :mod:`sortcheck.explain.repair`
-verifies the survivors.
+:func:`all_candidates` list the one-change candidates in that order
+(:mod:`sortcheck.explain.repair_scan` runs them on the bank of 0-1 inputs, and
+:mod:`sortcheck.explain.repair_search` verifies the survivors).
 
 >>> space, guide = _Space(channels=2, descending=False, first=0, last=1), _Guide(seal=None)
 >>> [(change.kind, change.index) for _, change in all_candidates(((0, 1),), space, guide)]
@@ -15,7 +14,6 @@ verifies the survivors.
 
 from __future__ import annotations
 
-from bisect import bisect_right
 from dataclasses import dataclass
 from functools import lru_cache
 from itertools import combinations
@@ -23,8 +21,6 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from sortcheck.engines import Budget
-from sortcheck.engines.networks.bitslice import failure_mask
 from sortcheck.explain.diagnose import diagnose_network, permutation_of
 from sortcheck.model import ComparatorNetwork, Property, Sorts
 
@@ -215,35 +211,7 @@ def all_candidates(comparators: tuple[Comparator, ...], space: _Space, guide: _G
     return found
 
 
-# ----------------------------------------------------------------------------- bank evaluation of candidates
-
-_CHUNK_WORDS = 1 << 22
-
-
-def advance(state: np.ndarray, comparator: Comparator) -> None:
-    """Apply one comparator to a bank state ``(channels, ...)`` in place."""
-    a, b = comparator
-    low = state[a] & state[b]
-    state[b] |= state[a]
-    state[a] = low
-
-
-def place(block: np.ndarray, base: np.ndarray, low: np.ndarray, high: np.ndarray) -> None:
-    """Fill the lanes of ``block`` ``(channels, lanes, words)`` with ``base``; apply ``(low[i], high[i])`` to lane ``i``.
-
-    ``low[i] == high[i]`` applies nothing (a delete).
-
-    >>> from sortcheck.explain.repair_bank import pack
-    >>> block = np.empty((2, 2, 1), dtype=np.uint64)
-    >>> place(block, pack([(1, 0)], 2), np.array([0, 0]), np.array([1, 0]))
-    >>> block[:, :, 0].tolist()
-    [[0, 1], [1, 0]]
-    """
-    block[:] = base[:, None, :]
-    lanes = np.arange(len(low))
-    first, second = block[low, lanes], block[high, lanes]
-    block[low, lanes] = first & second
-    block[high, lanes] = first | second
+# ----------------------------------------------------------------------------- the lanes of candidates
 
 
 def _ends(alternatives: Sequence[Comparator | None]) -> tuple[np.ndarray, np.ndarray]:
@@ -255,10 +223,56 @@ def _ends(alternatives: Sequence[Comparator | None]) -> tuple[np.ndarray, np.nda
 _NO_LANES = ((), np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp))
 
 
+def _replacement_ends(comparator: Comparator, channels: int) -> tuple[np.ndarray, np.ndarray]:
+    """The two ends of each of :func:`replacements` of ``comparator``, in its order (a delete: ``(0, 0)``).
+
+    >>> [pair.tolist() for pair in _replacement_ends((0, 2), 3)]
+    [[2, 1, 0, 0], [0, 2, 1, 0]]
+    """
+    a, b = comparator
+    others = np.delete(np.arange(channels, dtype=np.intp), sorted((a, b)))
+    low, high = [np.array([b], dtype=np.intp)], [np.array([a], dtype=np.intp)]
+    for kept in (b, a):
+        ends = np.minimum(others, kept), np.maximum(others, kept)
+        low.append(ends[0] if a < b else ends[1])
+        high.append(ends[1] if a < b else ends[0])
+    low.append(np.zeros(1, dtype=np.intp))
+    high.append(np.zeros(1, dtype=np.intp))
+    return np.concatenate(low), np.concatenate(high)
+
+
+def replacement_option(lane: int, lanes: int, low: np.ndarray, high: np.ndarray) -> tuple[str, Comparator | None]:
+    """Replacement ``lane`` of ``lanes`` as :func:`replacements` lists it, from :func:`_replacement_ends`."""
+    if lane == lanes - 1:
+        return "delete", None
+    return ("reverse" if lane == 0 else "move"), (int(low[lane]), int(high[lane]))
+
+
+class _Options:
+    """The replacements of one comparator as a sequence, named only when asked for."""
+
+    def __init__(self, low: np.ndarray, high: np.ndarray):
+        self.low, self.high = low, high
+
+    def __len__(self) -> int:
+        return len(self.low)
+
+    def __getitem__(self, lane: int) -> tuple[str, Comparator | None]:
+        if not 0 <= lane < len(self.low):
+            raise IndexError(lane)
+        return replacement_option(lane, len(self.low), self.low, self.high)
+
+
 @lru_cache(maxsize=1 << 16)
 def _replacement_lanes(comparator: Comparator, channels: int):
-    options = tuple(replacements(comparator, channels))
-    return (options, *_ends([new for _, new in options]))
+    """The replacements of ``comparator`` as ``(options, low, high)``, in the order of :func:`replacements`.
+
+    >>> options, low, high = _replacement_lanes((0, 2), 3)
+    >>> [options[i] for i in range(len(options))] == replacements((0, 2), 3)
+    True
+    """
+    low, high = _replacement_ends(comparator, channels)
+    return _Options(low, high), low, high
 
 
 @lru_cache(maxsize=64)
@@ -273,63 +287,3 @@ class _Counts:
     verifications: int = 0
     added: int = 0
     undecided: int = 0
-
-
-def scan(comparators: tuple[Comparator, ...], prop: Property, state: np.ndarray, start: int, space: _Space,
-         guide: _Guide, counts: _Counts, budget: Budget) -> list[tuple[tuple, Change]] | None:
-    """The one-change candidates at anchors ``space.first..space.last`` that pass the bank, in search order.
-
-    ``state`` is the bank after ``comparators[:start]``; None when the budget
-    ran out.  All candidates of a group of anchors are lanes of one array,
-    ordered by the step at which they join: the inserts at an anchor join
-    before its comparator, the replacements of that comparator after it, so
-    each comparator is applied once, to a prefix of the lanes.
-    """
-    state, size = state.copy(), len(comparators)
-    n, words = state.shape
-    capacity = max(1, _CHUNK_WORDS // (n * words))
-    for index in range(start, space.first):
-        advance(state, comparators[index])
-    survivors, anchor, last = [], max(start, space.first), min(space.last, size)
-    while anchor <= last:
-        if budget.expired():
-            return None
-        blocks, lanes, group = [], 0, anchor  # blocks: (anchor, first lane, insert pairs, replacement options)
-        while anchor <= last and (not blocks or lanes < capacity):
-            inserts = space.insert_lanes(anchor, guide)
-            repl = _replacement_lanes(comparators[anchor], n) if anchor < size else _NO_LANES
-            blocks.append((anchor, lanes, inserts, repl))
-            lanes += len(inserts[0]) + len(repl[0])
-            anchor += 1
-        cube, base, active = np.empty((n, lanes, words), dtype=np.uint64), state.copy(), 0
-        joins = {block[0]: block for block in blocks}
-        for index in range(group, size + 1):
-            inserted = replacing = 0
-            if index in joins:
-                _, _, inserts, repl = joins[index]
-                inserted, replacing = len(inserts[0]), len(repl[0])
-                place(cube[:, active:active + inserted + replacing], base,
-                      np.concatenate([inserts[1], repl[1]]), np.concatenate([inserts[2], repl[2]]))
-            if index < size:
-                advance(cube[:, :active + inserted], comparators[index])
-                advance(base, comparators[index])
-                if index < anchor:
-                    advance(state, comparators[index])
-            active += inserted + replacing
-        counts.tried += lanes
-        ok = np.flatnonzero(~failure_mask(prop, list(cube)).any(axis=1)).tolist()
-        starts = [block[1] for block in blocks]
-        for lane in ok:
-            index, first_lane, inserts, repl = blocks[bisect_right(starts, lane) - 1]
-            offset = lane - first_lane
-            if offset < len(inserts[0]):
-                pair = inserts[0][offset]
-                survivors.append((guide.key("insert", index, pair), Change("insert", index, pair)))
-            else:
-                kind, new = repl[0][offset - len(inserts[0])]
-                old = comparators[index]
-                new = old if new is None else new
-                survivors.append((guide.key(kind, index, new), Change(kind, index, new, old)))
-    survivors.sort(key=lambda item: item[0])
-    return survivors
-

@@ -13,10 +13,10 @@ import numpy as np
 
 from sortcheck.engines import Budget, Status, StopReason, Verdict, check
 from sortcheck.explain.repair_bank import Bank, failing, pack
-from sortcheck.explain.repair_candidates import (Change, Comparator, _Counts, _Guide, _Space, advance,
-                                                 all_candidates, apply_changes, guide_for, scan)
+from sortcheck.explain.repair_candidates import (Change, Comparator, _Counts, _Guide, _Space, all_candidates,
+                                                 apply_changes, guide_for)
+from sortcheck.explain.repair_scan import TooManyCandidates, advance, refilter, scan
 from sortcheck.model import ComparatorNetwork, Property
-from sortcheck.model.semantics import violation
 
 
 class CandidateSearch:
@@ -36,28 +36,36 @@ class CandidateSearch:
     def check(self, network: ComparatorNetwork) -> Verdict:
         return check(network, self.prop, engine=self.engine, timeout=self.budget.remaining())
 
-    def still_passes(self, network: ComparatorNetwork, since: int) -> bool:
-        """Whether the network gets right every bank input added since position ``since``."""
-        return all(violation(self.prop, vector, network.apply(list(vector))) is None
-                   for vector in self.bank.vectors[since:])
+    def verify(self, prefix: tuple[Change, ...], comparators: tuple[Comparator, ...],
+               survivors: list[tuple[tuple, Change]], since: int
+               ) -> tuple[tuple[Change, ...], ComparatorNetwork, Verdict] | None:
+        """The first of ``survivors`` that a full check proves, as the changes ``prefix`` and it; None if none.
 
-    def verify(self, candidates: list[tuple[Change, ...]], since: int) -> tuple[tuple[Change, ...], ComparatorNetwork,
-                                                                                  Verdict] | None:
-        """The first candidate (a sequence of changes) that a full check proves; None if none."""
-        for changes in candidates:
-            if self.budget.expired():
+        ``survivors`` are changes of ``comparators`` (the network after
+        ``prefix``) that passed the bank as it was up to input ``since``;
+        every input the bank gains from then on rules out the survivors left
+        that fail it, all at once.
+        """
+        remaining = self._passing(comparators, survivors, since)
+        while remaining is None or remaining:
+            if remaining is None or self.budget.expired():
                 self.timed_out = True
                 return None
-            repaired = apply_changes(self.network, changes)
-            if repaired.comparators in self.checked or not self.still_passes(repaired, since):
+            (_, change), remaining = remaining[0], remaining[1:]
+            changed = change.apply(comparators)
+            if changed in self.checked:
                 continue
-            self.checked.add(repaired.comparators)
+            self.checked.add(changed)
+            repaired = apply_changes(self.network, prefix + (change,))
             verdict = self.check(repaired)
             self.counts.verifications += 1
             if verdict.status == Status.PROVED:
-                return changes, repaired, verdict
+                return prefix + (change,), repaired, verdict
             if verdict.status == Status.REFUTED:
-                self.counts.added += self.bank.add(verdict.counterexample.input)
+                since = len(self.bank.vectors)
+                if self.bank.add(verdict.counterexample.input):
+                    self.counts.added += 1
+                    remaining = self._passing(comparators, remaining, since)
             elif verdict.stop == StopReason.TIMEOUT:
                 self.timed_out = True
                 return None
@@ -65,20 +73,36 @@ class CandidateSearch:
                 self.counts.undecided += 1
         return None
 
+    def _passing(self, comparators: tuple[Comparator, ...], survivors: list, since: int) -> list | None:
+        """The survivors that get the bank inputs from ``since`` on right."""
+        if since >= len(self.bank.vectors) or not survivors:
+            return survivors
+        return refilter(comparators, self.prop, pack(self.bank.vectors[since:], self.network.channels), 0,
+                        survivors, _Guide(None), self.budget)
+
     def state_at(self, index: int) -> np.ndarray:
         state = self.bank.rows().copy()
         for comparator in self.network.comparators[:index]:
             advance(state, comparator)
         return state
 
-    def one_change(self, space: _Space, guide: _Guide):
+    def one_change(self, spaces: list[_Space], guide: _Guide, limit: int | None = None):
+        """The first proved one-change candidate of the first space in ``spaces`` whose candidates left after
+        the bank's first pass are at most ``limit`` (the last space: however many); and that space."""
         since = len(self.bank.vectors)
-        survivors = scan(self.network.comparators, self.prop, self.state_at(0), 0, space, guide, self.counts,
-                         self.budget)
-        if survivors is None:
-            self.timed_out = True
-            return None
-        return self.verify([(change,) for _, change in survivors], since)
+        for number, space in enumerate(spaces):
+            tried = self.counts.tried
+            try:
+                survivors = scan(self.network.comparators, self.prop, self.state_at(0), 0, space, guide,
+                                 self.counts, self.budget, None if number == len(spaces) - 1 else limit)
+            except TooManyCandidates:
+                self.counts.tried = tried
+                continue
+            if survivors is None:
+                self.timed_out = True
+                return None, space
+            return self.verify((), self.network.comparators, survivors, since), space
+        raise ValueError("no space to search")
 
     def two_changes(self, space: _Space, guide: _Guide, span: tuple[int, int] | None = None,
                     firsts: list | None = None):
@@ -106,7 +130,7 @@ class CandidateSearch:
             if survivors is None:
                 self.timed_out = True
                 return None
-            found = self.verify([(first, second) for _, second in survivors], since)
+            found = self.verify((first,), changed, survivors, since)
             if found is not None or self.timed_out:
                 return found
         return None

@@ -45,11 +45,17 @@ PIECE_SECONDS = 0.25
 MAX_PIECES = 256
 #: Word operations (one comparator on 64 vectors) per second of the numpy evaluator over a whole check, in
 #: wall time on this project's machine under its usual load (merge exchange 28 without the reduction, a
-#: random 40-channel network counted: 3e8 to 3.5e8; about 1e9 in processor time); counting costs about a
-#: third more, and compiled kernels are about 10x faster.
+#: random 40-channel network counted: 3e8 to 3.5e8; about 1e9 in processor time); compiled kernels are
+#: about 10x faster.
 NUMPY_WORD_OPERATIONS = 3e8
-COUNTING_COST = 1.3
 COMPILED_SPEEDUP = 10.0
+#: Work per word of 64 vectors besides the comparators, in word operations: setting up each channel's row
+#: and the property's failure mask (about 2.5 per channel), and counting the inputs behind the failing lanes
+#: with ``--count`` (about 64).  Measured on random 40- to 44-channel networks with suffixes of 14 to 137
+#: comparators: 380-650 ns a word whole, 510-790 ns counted; a suffix of 14 comparators alone predicts 47 ns,
+#: which left a 6.8 s count estimated at 0.27 s and run in one process.
+ROW_OPERATIONS_PER_CHANNEL = 2.5
+COUNT_OPERATIONS = 64
 
 #: Figures that describe the whole layout, the same in every piece (not summed).
 SHARED_FIGURES = ["kernel", "vectors_after_reduction", "prefix_comparators", "suffix_comparators", "largest_set"]
@@ -88,10 +94,12 @@ def estimated_seconds(layout: Layout, suffix: int, compiled_kernel: bool, count:
     """Seconds the whole evaluation of ``layout`` through ``suffix`` comparators should take on one core.
 
     >>> from sortcheck.engines.networks.reduction import singleton_groups
-    >>> round(estimated_seconds(Layout(ReducedSpace(28, tuple(singleton_groups(28)), (), {}, 2, True)), 160, False), 1)
-    2.2
+    >>> layout = Layout(ReducedSpace(28, tuple(singleton_groups(28)), (), {}, 2, True))
+    >>> round(estimated_seconds(layout, 160, False), 1), round(estimated_seconds(layout, 160, False, count=True), 1)
+    (3.2, 4.1)
     """
-    seconds = layout.vectors * max(1, suffix) / 64 / NUMPY_WORD_OPERATIONS * (COUNTING_COST if count else 1.0)
+    per_word = max(1, suffix) + ROW_OPERATIONS_PER_CHANNEL * layout.channels + (COUNT_OPERATIONS if count else 0)
+    seconds = layout.vectors * per_word / 64 / NUMPY_WORD_OPERATIONS
     return seconds / COMPILED_SPEEDUP if compiled_kernel else seconds
 
 
