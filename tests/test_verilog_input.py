@@ -353,3 +353,10 @@ def test_valid_flags_beside_the_words_are_left_out_and_said_so(tmp_path):
                     "  wire swap = down ? a < b : b < a;\n"
                     "  assign lo = swap ? b : a; assign hi = swap ? a : b;\nendmodule\n")
     assert "different widths (down 1, a 6, b 6 bits)" in _error(str(mode))
+
+
+def test_without_yosys_the_error_says_what_to_install(monkeypatch, tmp_path):
+    monkeypatch.setenv("SORTCHECK_YOSYS", str(tmp_path / "no-such-yosys"))
+    monkeypatch.setenv("SORTCHECK_CACHE_DIR", str(tmp_path / "empty-cache"))
+    line = _error(LADDER, "--words", "8", "--width", "8")
+    assert "pip install 'sortcheck[verilog]'" in line and "no-such-yosys" in line
