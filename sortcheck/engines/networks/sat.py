@@ -52,6 +52,7 @@ from sortcheck.engines.networks.certificates import canonical, claim_digest, cla
 from sortcheck.engines.networks.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.networks.cnf import dimacs, part_clauses
 from sortcheck.engines.networks.order import relations_prove_sorted
+from sortcheck.engines.networks.profiles import TwoRuns, check_profiles
 from sortcheck.engines.networks.split import SortedParts, frontier, join_delayed_order, split_tree
 from sortcheck.engines.networks.sat_blocks import BlockSteps, BlockTally
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
@@ -69,6 +70,10 @@ PROOF_SOLVERS = ("glucose3", "glucose4", "glucose42", "gluecard3", "gluecard4", 
 
 #: Parts with at most this many 0-1 vectors are checked by enumerating them.
 ENUMERATION_LIMIT = 1 << 22
+
+#: Parts on two proved runs with more 0-1 vectors than this are checked on profiles
+#: (:mod:`sortcheck.engines.networks.profiles`), smaller ones by enumeration.
+PROFILE_LIMIT = 1 << 12
 
 #: Random 0-1 inputs tried before anything else (in rounds of 4096).
 SIMULATION_ROUNDS = 4
@@ -107,6 +112,13 @@ class _Tally:
     enumerated: list = field(default_factory=list)
     #: Order relations are still to be tried on the checked network (a sort, not yet tried).
     relations_pending: bool = False
+    #: Parts checked on profiles, the profiles evaluated and the 0-1 vectors they stand for.
+    parts_profiled: int = 0
+    profiles: int = 0
+    profiled_vectors: int = 0
+    #: Parts whose question (relabelled to channels 0..k-1) was decided before -> the order found.
+    decided_parts: dict = field(default_factory=dict)
+    parts_reused: int = 0
 
 
 
@@ -193,6 +205,9 @@ class SatEngine(BlockSteps):
         their own (:mod:`sortcheck.engines.networks.sat_blocks`).
     block_limit : int
         The most vectors one check after such sub-networks may enumerate.
+    profiles : bool
+        Check parts on two proved runs on profiles (:mod:`sortcheck.engines.networks.profiles`)
+        when they have more than :data:`PROFILE_LIMIT` vectors (False: enumeration or SAT).
     """
 
     name = "sat"
@@ -203,8 +218,9 @@ class SatEngine(BlockSteps):
 
     def __init__(self, solver: str = SOLVER, enumeration_limit: int = ENUMERATION_LIMIT, split: bool = True,
                  simulation_rounds: int = SIMULATION_ROUNDS, blocks: bool = True,
-                 block_limit: int = ENUMERATION_LIMIT):
+                 block_limit: int = ENUMERATION_LIMIT, profiles: bool = True):
         self.solver = solver
+        self.profiles = profiles
         self.enumeration_limit = enumeration_limit
         self.split = split
         self.blocks = blocks
@@ -284,7 +300,13 @@ class SatEngine(BlockSteps):
         return self._decide(network, groups, comparators, prop, budget, tally)
 
     def _settle(self, network: ComparatorNetwork, parts: list, index: int, budget: Budget, tally: _Tally) -> None:
-        """Prove part ``index`` sorts (ascending, else descending) or dissolve it."""
+        """Prove part ``index`` sorts (ascending, else descending) or dissolve it.
+
+        A part whose question, relabelled to channels ``0..k-1`` in ascending order, was decided
+        before (the translated merges of Batcher's networks) takes the same answer: order-keeping
+        relabelling maps the one question onto the other exactly.  Not with certificates, which
+        record a claim per part.
+        """
         part = parts[index]
         below, comparators = frontier(parts, index)
         if len(comparators) > (DISSOLVED_RATIO + 1) * max(1, len(part.segment)):
@@ -292,18 +314,58 @@ class SatEngine(BlockSteps):
             tally.parts_dissolved += 1
             return
         groups = [(parts[i].channels, parts[i].order) for i in below]
-        for order in ("ascending", "descending"):
+        key = None if tally.certify else _question_key(network, part.channels, groups, comparators)
+        if key is not None and key in tally.decided_parts:
+            part.order = tally.decided_parts[key]
+            tally.parts_reused += 1
+        else:
+            part.order = self._part_order(network, part, groups, comparators, budget, tally)
+            if key is not None:
+                tally.decided_parts[key] = part.order
+        if part.order == "dissolved":
+            tally.parts_dissolved += 1
+        else:
+            tally.parts_proved += 1
+
+    def _part_order(self, network: ComparatorNetwork, part, groups: list, comparators: list[int], budget: Budget,
+                    tally: _Tally) -> str:
+        """The order part ``part`` is proved to sort in from its groups, or ``"dissolved"``."""
+        orders = ("ascending", "descending")
+        if self._profiled(groups, tally):
+            failures = self._by_profiles(network, groups, comparators, [(part.channels, o) for o in orders],
+                                         budget, tally)
+            return next((order for order, failing in zip(orders, failures) if failing is None), "dissolved")
+        for order in orders:
             failing, _ = self._decide(network, groups, comparators, ("sorted", part.channels, order), budget, tally)
             if failing is None:
-                part.order = order
-                tally.parts_proved += 1
-                return
-        part.order = "dissolved"
-        tally.parts_dissolved += 1
+                return order
+        return "dissolved"
+
+    def _profiled(self, groups: list, tally: _Tally) -> bool:
+        """Whether a question from ``groups`` goes to profiles: two runs, many vectors, no certificates."""
+        return (self.profiles and len(groups) == 2 and not tally.certify
+                and (len(groups[0][0]) + 1) * (len(groups[1][0]) + 1) > PROFILE_LIMIT)
+
+    def _by_profiles(self, network: ComparatorNetwork, groups: list, comparators: list[int], targets: list,
+                     budget: Budget, tally: _Tally) -> list[tuple[int, ...] | None]:
+        """Per target ``(channels, order)``: a vector sorted on the two groups left unsorted there, or None."""
+        runs = TwoRuns(groups)
+        try:
+            points = check_profiles(network.comparators, runs, comparators, targets, budget.expired)
+        except TimeoutError:
+            raise _Interrupted from None
+        tally.parts_profiled += 1
+        tally.profiles += runs.size + 1
+        tally.profiled_vectors += runs.total
+        return [None if point is None else runs.vector(point, network.channels) for point in points]
 
     def _decide(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
                 tally: _Tally) -> tuple[tuple[int, ...] | None, str]:
         """A vector sorted on the groups that breaks ``target`` after ``comparators``, or None; and the method."""
+        if self._profiled(groups, tally) and (isinstance(target, tuple) or isinstance(target, (Sorts, Merges))):
+            channels, order = ((target[1], target[2]) if isinstance(target, tuple) else
+                               (tuple(range(network.channels)), getattr(target, "order", "ascending")))
+            return self._by_profiles(network, groups, comparators, [(channels, order)], budget, tally)[0], "split"
         source = SortedParts(groups)
         if source.total <= self.enumeration_limit:
             tally.parts_enumerated += 1
@@ -439,19 +501,28 @@ class SatEngine(BlockSteps):
                 "parts_proved": tally.parts_proved, "parts_dissolved": tally.parts_dissolved,
                 "parts_enumerated": tally.parts_enumerated, "vectors_enumerated": tally.vectors,
                 "sub_networks_proved": tally.blocks.used, "sub_networks_distinct": tally.blocks.distinct,
+                "parts_profiled": tally.parts_profiled, "profiles_evaluated": tally.profiles,
+                "vectors_profiled": tally.profiled_vectors, "parts_reused": tally.parts_reused,
                 "seconds": time.perf_counter() - started}
 
     def _proved_scope(self, network: ComparatorNetwork, prop: Property, tally: _Tally) -> str:
         n = network.channels
         inputs = (f"every input on {n} channels whose positions 0..{prop.split - 1} and {prop.split}..{n - 1} are "
                   f"each ascending" if isinstance(prop, Merges) else f"every input on {n} channels")
-        if tally.vectors == 0 and tally.parts_proved == 0:
+        if tally.vectors == 0 and tally.parts_proved == 0 and tally.parts_profiled == 0:
             how = f"through a SAT proof of unsatisfiability ({self.solver})"
         else:
             how = (f"the network was split along its structure into {tally.parts_proved} proved sorting parts and "
                    f"the property, each checked on every 0-1 vector the parts before it can produce: "
                    f"{tally.vectors:,} vectors enumerated bit-parallel and {tally.sat_calls} SAT proofs of "
                    f"unsatisfiability ({self.solver})")
+            if tally.parts_profiled:
+                how += (f"; {tally.parts_profiled} questions on two proved sorted runs were decided exactly on "
+                        f"{tally.profiles:,} monotone profiles standing for {tally.profiled_vectors:,} 0-1 vectors "
+                        f"(encodings/two-run-profiles.md)")
+            if tally.parts_reused:
+                how += (f"; {tally.parts_reused} parts asked the same question as a part decided before, on "
+                        f"other channels in the same order, and took its answer")
             if tally.blocks.used:
                 how += (f"; {tally.blocks.used} independent sub-networks on disjoint channel sets "
                         f"({tally.blocks.distinct} distinct) were proved, each as a network of its own by the same "
@@ -476,3 +547,18 @@ class SatEngine(BlockSteps):
         scope = (f"the time budget ran out after {tally.parts_proved} parts were proved to sort and "
                  f"{tally.sat_calls} SAT calls; random inputs found no failure; nothing is proved")
         return Verdict(Status.UNKNOWN, self.name, prop, StopReason.TIMEOUT, scope, figures["seconds"], None, figures)
+
+
+def _question_key(network: ComparatorNetwork, channels: tuple[int, ...], groups: list, comparators: list[int]) -> bytes:
+    """The question of a part with its channels relabelled ``0..k-1`` in ascending order, as bytes.
+
+    Two parts with equal keys ask the same question of translated channels: their groups (with
+    orders) and comparator sequences correspond one to one under an order-keeping relabelling.
+    """
+    rank = np.full(network.channels, -1, dtype=np.int64)
+    rank[np.array(channels, dtype=np.int64)] = np.arange(len(channels))
+    pairs = np.array([network.comparators[i] for i in comparators], dtype=np.int64).reshape(-1, 2)
+    described = [len(channels), len(groups)]
+    for members, order in groups:
+        described += [len(members), order == "descending", *rank[np.array(members, dtype=np.int64)].tolist()]
+    return np.array(described, dtype=np.int64).tobytes() + b"|" + rank[pairs].astype(np.int64).tobytes()
