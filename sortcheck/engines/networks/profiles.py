@@ -124,6 +124,26 @@ def layers_of(pairs: Sequence[tuple[int, int]], local: dict[int, int]) -> list[t
     return [(np.array(low, dtype=np.int64), np.array(high, dtype=np.int64)) for low, high in by_layer]
 
 
+def apply_layers(matrix: np.ndarray, layers: list[tuple[np.ndarray, np.ndarray]], low: Callable, high: Callable,
+                 expired: Callable[[], bool] = lambda: False) -> None:
+    """Apply comparator layers to the rows of ``matrix`` in place: ``low`` of each pair to its minimum row.
+
+    On 0-1 values packed into words ``low, high`` are AND and OR; on profiles, maximum and minimum.
+    Raises :class:`TimeoutError` when ``expired()`` turns true between layers.
+
+    >>> rows = np.array([[0b1100], [0b1010]], dtype=np.uint64)
+    >>> apply_layers(rows, layers_of([(0, 1)], {0: 0, 1: 1}), np.bitwise_and, np.bitwise_or)
+    >>> [bin(int(word)) for word in rows[:, 0]]
+    ['0b1000', '0b1110']
+    """
+    for minimum_rows, maximum_rows in layers:
+        if expired():
+            raise TimeoutError
+        first, second = matrix[minimum_rows], matrix[maximum_rows]
+        matrix[minimum_rows] = low(first, second)
+        matrix[maximum_rows] = high(first, second)
+
+
 def check_profiles(comparators: Sequence[tuple[int, int]], runs: TwoRuns, indices: Sequence[int],
                    targets: Sequence[tuple[tuple[int, ...], str]],
                    expired: Callable[[], bool] = lambda: False) -> list[tuple[int, int] | None]:
@@ -150,12 +170,7 @@ def check_profiles(comparators: Sequence[tuple[int, int]], runs: TwoRuns, indice
     for first in range(0, runs.size + 1, chunk):
         counts = np.arange(first, min(first + chunk, runs.size + 1), dtype=np.int64)
         profiles = runs.start(local, counts)
-        for low, high in layers:
-            if expired():
-                raise TimeoutError
-            smaller, larger = profiles[low], profiles[high]
-            profiles[low] = np.maximum(smaller, larger)
-            profiles[high] = np.minimum(smaller, larger)
+        apply_layers(profiles, layers, np.maximum, np.minimum, expired)
         for number, ((members, order), rows) in enumerate(zip(targets, rows_of)):
             if failures[number] is None and len(members) > 1:
                 failures[number] = _first_failure(profiles[rows], order, first)

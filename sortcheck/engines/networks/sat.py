@@ -52,7 +52,7 @@ from sortcheck.engines.networks.certificates import canonical, claim_digest, cla
 from sortcheck.engines.networks.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.networks.cnf import dimacs, part_clauses
 from sortcheck.engines.networks.order import relations_prove_sorted
-from sortcheck.engines.networks.profiles import TwoRuns, check_profiles
+from sortcheck.engines.networks.profiles import TwoRuns, apply_layers, check_profiles, layers_of
 from sortcheck.engines.networks.split import SortedParts, frontier, join_delayed_order, split_tree
 from sortcheck.engines.networks.sat_blocks import BlockSteps, BlockTally
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
@@ -131,11 +131,18 @@ def _apply_within(rows: list, pairs: list, scratch: np.ndarray, budget: Budget, 
     return scratch
 
 
+#: Above this many channels, random simulation uses fewer lanes and random inputs of about the drawn weight
+#: (each channel 1 with probability weight/n) instead of exactly it, which needs a sort of n keys per lane.
+LARGE_SIMULATION = 4096
+
+
 def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: Budget, seed: int = 2024
               ) -> tuple[int, ...] | None:
     """A failing 0-1 input among random ones, or None.  Merges get random pairs of ascending runs."""
-    n, lanes = network.channels, 4096
+    n = network.channels
+    lanes = 4096 if n <= LARGE_SIMULATION else max(256, (1 << 24) // n // 64 * 64)
     rng = np.random.default_rng(seed)
+    layers = layers_of(network.comparators, range(n))
     for _ in range(rounds):
         if isinstance(prop, Merges):
             source = SortedParts([(tuple(range(prop.split)), "ascending"), (tuple(range(prop.split, n)), "ascending")])
@@ -146,15 +153,20 @@ def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: B
             spread = rng.integers(0, n + 1, size=lanes // 2)
             middle = np.clip(np.rint(rng.normal(n / 2, max(1.0, np.sqrt(n) / 2), size=lanes - lanes // 2)), 0, n)
             weights = np.concatenate([spread, middle.astype(np.int64)])
-            # lane i: ones on the weights[i] channels of smallest random key (a uniformly random set of that
-            # size), found with one sort: those keys are at most the weights[i]-th smallest
-            keys = rng.random((lanes, n))
-            cut = np.sort(keys, axis=1)[np.arange(lanes), np.clip(weights - 1, 0, n - 1)]
-            bits = ((keys <= cut[:, None]) & (weights[:, None] > 0)).T
+            if n <= LARGE_SIMULATION:
+                # lane i: ones on the weights[i] channels of smallest random key (a uniformly random set of that
+                # size), found with one sort: those keys are at most the weights[i]-th smallest
+                keys = rng.random((lanes, n))
+                cut = np.sort(keys, axis=1)[np.arange(lanes), np.clip(weights - 1, 0, n - 1)]
+                bits = ((keys <= cut[:, None]) & (weights[:, None] > 0)).T
+            else:
+                bits = (rng.random((n, lanes), dtype=np.float32) < (weights / n).astype(np.float32)[None, :])
         packed = np.ascontiguousarray(np.packbits(bits, axis=1, bitorder="little")).view("<u8")
-        rows = [packed[c].copy() for c in range(n)]
-        _apply_within(rows, list(network.comparators), np.empty(lanes // 64, dtype=np.uint64), budget)
-        lane = first_failing_lane(failure_mask(prop, rows), lanes)
+        try:
+            apply_layers(packed, layers, np.bitwise_and, np.bitwise_or, budget.expired)
+        except TimeoutError:
+            raise _Interrupted from None
+        lane = first_failing_lane(failure_mask(prop, list(packed)), lanes)
         if lane is not None:
             return tuple(int(b) for b in bits[:, lane])
     return None
