@@ -204,3 +204,65 @@ def test_random_merge_like_networks_agree_with_enumeration(name, n, data):
     if verdict.status == Status.REFUTED:
         example = list(verdict.counterexample.input)
         assert breaks(Sorts(), example, run(mutant.comparators, example))
+
+
+# --- counts handed to two blocks by many sorted groups (count_intervals), against every configuration ----------
+
+@st.composite
+def groups_and_blocks(draw):
+    channels = draw(st.integers(2, 9))
+    order = draw(st.permutations(range(channels)))
+    cuts = sorted(draw(st.sets(st.integers(1, channels - 1), max_size=4)))
+    pieces = [order[i:j] for i, j in zip([0, *cuts], [*cuts, channels])]
+    groups = [(tuple(sorted(p)), draw(st.sampled_from(["ascending", "descending"]))) for p in pieces]
+    axis = tuple(sorted(draw(st.sets(st.sampled_from(range(channels)), min_size=1, max_size=channels - 1))))
+    return channels, groups, axis
+
+
+@settings(max_examples=120, deadline=None)
+@given(groups_and_blocks())
+def test_count_intervals_are_exactly_the_reachable_counts(case):
+    import itertools
+    from sortcheck.engines.networks.count_intervals import CountIntervals
+    channels, groups, axis = case
+    reachable = {}
+    for ones in itertools.product(*[range(len(members) + 1) for members, _ in groups]):
+        vector = run_vector(ones, groups, channels)
+        x = sum(vector[c] for c in axis)
+        reachable.setdefault((x, sum(vector) - x), ones)
+    intervals = CountIntervals(groups, axis)
+    low, high = intervals.bounds()
+    described = {(x, y) for x in range(len(low)) for y in range(int(low[x]), int(high[x]) + 1)}
+    assert described == set(reachable)
+    for x, y in reachable:
+        ones = intervals.witness(x, y)
+        vector = run_vector(ones, groups, channels)
+        assert sum(vector[c] for c in axis) == x and sum(vector) - x == y
+
+
+class NoSampling(SatEngine):
+    """No random vectors before the block step and no enumeration of all sorted vectors: the steps proper decide."""
+
+    def _sample(self, *arguments):
+        return None
+
+
+@pytest.mark.parametrize("removed", [-1, -40, -90])
+def test_pairwise_after_its_blocks_is_decided_on_reachable_counts(always_profiles, monkeypatch, removed):
+    calls = []
+    original = SatEngine._after_blocks_by_intervals
+    monkeypatch.setattr(SatEngine, "_after_blocks_by_intervals",
+                        lambda self, *arguments: calls.append(1) or original(self, *arguments))
+    network = pairwise(24)
+    assert sorts_every_input(network)
+    engine = NoSampling(simulation_rounds=0, enumeration_limit=0)
+    verdict = engine.check(network, Sorts(), Budget())
+    assert verdict.status == Status.PROVED and verdict.figures["sub_networks_proved"] > 0 and calls
+    comparators = list(network.comparators)
+    del comparators[removed]
+    broken = ComparatorNetwork(24, tuple(comparators))
+    verdict = engine.check(broken, Sorts(), Budget())
+    assert verdict.status == (Status.PROVED if sorts_every_input(broken) else Status.REFUTED)
+    if verdict.status == Status.REFUTED:
+        example = list(verdict.counterexample.input)
+        assert breaks(Sorts(), example, run(broken.comparators, example))

@@ -146,15 +146,17 @@ def apply_layers(matrix: np.ndarray, layers: list[tuple[np.ndarray, np.ndarray]]
 
 def check_profiles(comparators: Sequence[tuple[int, int]], runs: TwoRuns, indices: Sequence[int],
                    targets: Sequence[tuple[tuple[int, ...], str]],
-                   expired: Callable[[], bool] = lambda: False) -> list[tuple[int, int] | None]:
+                   expired: Callable[[], bool] = lambda: False,
+                   bounds: tuple[np.ndarray, np.ndarray] | None = None) -> list[tuple[int, int] | None]:
     """For each target ``(channels, order)``: a point ``(a, b)`` whose vector the comparators leave unsorted there.
 
     ``comparators[i]`` for ``i`` in ``indices`` (a valid order) act on the
     channels of the two runs only.  Returns, per target, the failing point
     with the least ``a`` (then the least failing pair of channels), or None
     when every vector of the runs comes out sorted in that order on the
-    target's channels.  Raises :class:`TimeoutError` when ``expired()``
-    turns true between layers.
+    target's channels.  With ``bounds = (low, high)`` (arrays over ``a``) only the points with
+    ``low[a] <= b <= high[a]`` count (none where ``low[a] > high[a]``).  Raises :class:`TimeoutError`
+    when ``expired()`` turns true between layers.
 
     >>> runs = TwoRuns([((0,), "ascending"), ((1,), "ascending")])
     >>> check_profiles([(0, 1)], runs, [0], [((0, 1), "ascending"), ((0, 1), "descending")])
@@ -173,20 +175,31 @@ def check_profiles(comparators: Sequence[tuple[int, int]], runs: TwoRuns, indice
         apply_layers(profiles, layers, np.maximum, np.minimum, expired)
         for number, ((members, order), rows) in enumerate(zip(targets, rows_of)):
             if failures[number] is None and len(members) > 1:
-                failures[number] = _first_failure(profiles[rows], order, first)
+                window = None if bounds is None else (bounds[0][counts], bounds[1][counts])
+                failures[number] = _first_failure(profiles[rows], order, first, window)
         if all(failure is not None for failure in failures):
             break
     return failures
 
 
-def _first_failure(profiles: np.ndarray, order: str, first: int) -> tuple[int, int] | None:
-    """The failing point of least ``a`` (then least pair) of target rows in order, or None."""
+def _first_failure(profiles: np.ndarray, order: str, first: int,
+                   window: tuple[np.ndarray, np.ndarray] | None = None) -> tuple[int, int] | None:
+    """The failing point of least ``a`` (then least pair) of target rows in order, or None.
+
+    Ascending, row ``k`` is 1 and row ``k+1`` is 0 exactly for ``profile_k <= b < profile_{k+1}``;
+    with a window ``low <= b <= high`` the least such ``b`` is ``max(profile_k, low)``.
+    """
     upper, lower = (profiles[:-1], profiles[1:]) if order == "ascending" else (profiles[1:], profiles[:-1])
     # ascending: row k must be 1 only where row k+1 is, i.e. profile_k >= profile_{k+1}
-    bad = upper < lower
+    if window is None:
+        start, bad = upper, upper < lower
+    else:
+        low, high = (bound.astype(np.int64)[None, :] for bound in window)
+        start = np.maximum(upper.astype(np.int64), low)
+        bad = start < np.minimum(lower.astype(np.int64), high + 1)
     columns = np.flatnonzero(bad.any(axis=0))
     if columns.size == 0:
         return None
     column = int(columns[0])
     pair = int(np.flatnonzero(bad[:, column])[0])
-    return first + column, int(upper[pair, column])
+    return first + column, int(start[pair, column])

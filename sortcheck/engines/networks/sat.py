@@ -353,10 +353,26 @@ class SatEngine(BlockSteps):
                 return order
         return "dissolved"
 
+    def _profiles_wanted(self, vectors: int, tally: _Tally) -> bool:
+        """Whether a question on two runs of this many vectors goes to profiles."""
+        return self.profiles and not tally.certify and vectors > PROFILE_LIMIT
+
+    @staticmethod
+    def _sorted_target(network: ComparatorNetwork, target) -> tuple[tuple[int, ...], str] | None:
+        """``target`` as (channels, order) to be sorted in, or None for a property that is not a sort or merge."""
+        if isinstance(target, tuple):
+            return target[1], target[2]
+        if isinstance(target, (Sorts, Merges)):
+            return tuple(range(network.channels)), getattr(target, "order", "ascending")
+        return None
+
+    @staticmethod
+    def _interrupted() -> Exception:
+        return _Interrupted()
+
     def _profiled(self, groups: list, tally: _Tally) -> bool:
         """Whether a question from ``groups`` goes to profiles: two runs, many vectors, no certificates."""
-        return (self.profiles and len(groups) == 2 and not tally.certify
-                and (len(groups[0][0]) + 1) * (len(groups[1][0]) + 1) > PROFILE_LIMIT)
+        return len(groups) == 2 and self._profiles_wanted((len(groups[0][0]) + 1) * (len(groups[1][0]) + 1), tally)
 
     def _by_profiles(self, network: ComparatorNetwork, groups: list, comparators: list[int], targets: list,
                      budget: Budget, tally: _Tally) -> list[tuple[int, ...] | None]:
@@ -374,10 +390,9 @@ class SatEngine(BlockSteps):
     def _decide(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
                 tally: _Tally) -> tuple[tuple[int, ...] | None, str]:
         """A vector sorted on the groups that breaks ``target`` after ``comparators``, or None; and the method."""
-        if self._profiled(groups, tally) and (isinstance(target, tuple) or isinstance(target, (Sorts, Merges))):
-            channels, order = ((target[1], target[2]) if isinstance(target, tuple) else
-                               (tuple(range(network.channels)), getattr(target, "order", "ascending")))
-            return self._by_profiles(network, groups, comparators, [(channels, order)], budget, tally)[0], "split"
+        if self._profiled(groups, tally) and self._sorted_target(network, target) is not None:
+            return (self._by_profiles(network, groups, comparators, [self._sorted_target(network, target)], budget,
+                                      tally)[0], "split")
         source = SortedParts(groups)
         if source.total <= self.enumeration_limit:
             tally.parts_enumerated += 1

@@ -26,6 +26,8 @@ from dataclasses import dataclass, field
 
 from sortcheck.engines.base import Budget
 from sortcheck.engines.networks.blocks import ReachableVectors, block_network, canonical, find_blocks
+from sortcheck.engines.networks.count_intervals import CountIntervals
+from sortcheck.engines.networks.profiles import TwoRuns, check_profiles
 from sortcheck.engines.networks.split import SortedParts
 from sortcheck.engines.networks.order import relations_prove_sorted
 from sortcheck.model import ComparatorNetwork, Sorts
@@ -65,7 +67,12 @@ class BlockSteps:
             return None
         pairs = [network.comparators[i] for i in comparators]
         blocks = find_blocks(pairs, [c for members, _ in groups for c in members])
-        if blocks is None or math.prod(len(block) + 1 for block in blocks.channels) > self.block_limit:
+        if blocks is None:
+            return None
+        count_pairs = math.prod(len(block) + 1 for block in blocks.channels)
+        by_intervals = (len(blocks.channels) == 2 and self._profiles_wanted(count_pairs, tally)
+                        and self._sorted_target(network, target) is not None)
+        if count_pairs > self.block_limit and not by_intervals:
             return None
         orders = []
         for channels, members in zip(blocks.channels, blocks.members):
@@ -74,10 +81,37 @@ class BlockSteps:
                 return None
             orders.append(order)
         blocks_tally.used += len(blocks.channels)
+        if by_intervals:
+            return self._after_blocks_by_intervals(network, groups, comparators, blocks, orders, target, budget,
+                                                   tally)
         source = ReachableVectors(groups, list(zip(blocks.channels, orders)))
         tally.parts_enumerated += 1
         failing = self._enumerate(network, source, [comparators[p] for p in blocks.after], target, budget, tally)
         return failing, "split"
+
+    def _after_blocks_by_intervals(self, network: ComparatorNetwork, groups: list, comparators: list[int], blocks,
+                                   orders: list[str], target, budget: Budget, tally
+                                   ) -> tuple[tuple[int, ...] | None, str] | None:
+        """The comparators after two sorting blocks, on profiles of the two blocks' counts, restricted to
+        the reachable counts (:mod:`sortcheck.engines.networks.count_intervals`); None when a failing
+        count pair is found but no witness can be built (the tables would be too large)."""
+        runs = TwoRuns(list(zip(blocks.channels, orders)))
+        intervals = CountIntervals(groups, blocks.channels[runs.axis])
+        after = [comparators[p] for p in blocks.after]
+        try:
+            point = check_profiles(network.comparators, runs, after, [self._sorted_target(network, target)],
+                                   budget.expired, intervals.bounds())[0]
+        except TimeoutError:
+            raise self._interrupted() from None
+        tally.parts_profiled += 1
+        tally.profiles += runs.size + 1
+        tally.profiled_vectors += runs.total
+        if point is None:
+            return None, "split"
+        ones = intervals.witness(*point)
+        if ones is None:
+            return None
+        return SortedParts(groups).vector_of_ones(ones, network.channels), "split"
 
     def _sorts_alone(self, network: ComparatorNetwork, budget: Budget, tally) -> str | None:
         """The order (``"ascending"``, ``"descending"``) ``network`` is proved to sort every input in, or None."""
