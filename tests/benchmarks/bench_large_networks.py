@@ -84,7 +84,7 @@ def main() -> None:
             for n in (size for size in SIZES if size <= arguments.largest):
                 path = Path(directory) / f"{family}-{n}.json"
                 subprocess.run([*sortcheck, "build", family, str(n), "--output", str(path)], check=True,
-                               stdout=subprocess.DEVNULL)
+                               stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
                 written = json.loads(path.read_text())
                 comparators = sum(map(len, written["layers"])) if "layers" in written else len(written["comparators"])
                 del written
