@@ -70,7 +70,8 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--largest", type=int, default=SIZES[-1], help="largest channel count (a power of two)")
     parser.add_argument("--families", nargs="+", default=list(FAMILIES), choices=FAMILIES)
-    parser.add_argument("--timeout", type=float, default=1800.0, help="seconds per check")
+    parser.add_argument("--timeout", type=float, default=None,
+                        help="seconds per check (default none: the plain `sortcheck check FILE.json`)")
     parser.add_argument("--baseline-largest", type=int, default=2048, help="largest size the baseline runs at")
     parser.add_argument("--baseline-timeout", type=float, default=300.0)
     arguments = parser.parse_args()
@@ -88,8 +89,8 @@ def main() -> None:
                 written = json.loads(path.read_text())
                 comparators = sum(map(len, written["layers"])) if "layers" in written else len(written["comparators"])
                 del written
-                seconds, peak, report = measured([*sortcheck, "check", str(path), "--format", "json",
-                                                  "--timeout", str(arguments.timeout)])
+                limit = [] if arguments.timeout is None else ["--timeout", str(arguments.timeout)]
+                seconds, peak, report = measured([*sortcheck, "check", str(path), "--format", "json", *limit])
                 verdict = verdict_of(report)
                 if verdict == "proved":
                     points.append((n, seconds))
@@ -98,14 +99,15 @@ def main() -> None:
                     base_seconds, _, base_out = measured([sys.executable, "-c", BASELINE, str(path),
                                                           str(arguments.baseline_timeout)])
                     baseline = f"{base_seconds:.1f}" + ("" if base_out.strip() == "proved" else f" ({base_out.strip()})")
-                    ratio = f"{base_seconds / seconds:.1f}x"
+                    ratio = ("" if base_out.strip() == "proved" else ">") + f"{base_seconds / seconds:.1f}x"
                 print(f"{family:<16}{n:>7}{comparators:>13,}{path.stat().st_size / 1e6:>9.1f}{verdict:>9}"
                       f"{seconds:>10.1f}{peak:>9.0f}{baseline:>12}{ratio:>8}", flush=True)
                 path.unlink()
-            exponent = fitted_exponent(points)
-            if exponent is not None:
-                print(f"{family}: seconds ~ n^{exponent:.2f} (least squares on log-log over "
-                      f"{points[0][0]}..{points[-1][0]} channels)", flush=True)
+            for fitted in (points, points[-3:]):
+                exponent = fitted_exponent(fitted)
+                if exponent is not None:
+                    print(f"{family}: seconds ~ n^{exponent:.2f} (least squares on log-log over "
+                          f"{fitted[0][0]}..{fitted[-1][0]} channels)", flush=True)
 
 
 if __name__ == "__main__":
