@@ -14,7 +14,7 @@ from hypothesis import given, settings, strategies as st
 
 from sortcheck.engines import check
 from sortcheck.engines.base import Budget, Status
-from sortcheck.engines.networks import sat
+from sortcheck.engines.networks import sat_profiles
 from sortcheck.engines.networks.profiles import TwoRuns, check_profiles
 from sortcheck.engines.networks.sat import SatEngine
 from sortcheck.model import ComparatorNetwork, Merges, Sorts
@@ -55,7 +55,7 @@ def sorts_every_input(network, descending=False):
 @pytest.fixture
 def always_profiles(monkeypatch):
     """Every question on two runs goes to profiles, however few its vectors."""
-    monkeypatch.setattr(sat, "PROFILE_LIMIT", 0)
+    monkeypatch.setattr(sat_profiles, "PROFILE_LIMIT", 0)
 
 
 # --- check_profiles against every pair of runs, judged with sorted ---------------------------------------------
@@ -193,12 +193,12 @@ def test_random_merge_like_networks_agree_with_enumeration(name, n, data):
         else:
             comparators.insert(index, tuple(sorted(data.draw(st.permutations(range(n)))[:2])))
     mutant = ComparatorNetwork(n, tuple(comparators))
-    saved = sat.PROFILE_LIMIT
-    sat.PROFILE_LIMIT = 0   # (hypothesis runs the examples inside one test: no fixture per example)
+    saved = sat_profiles.PROFILE_LIMIT
+    sat_profiles.PROFILE_LIMIT = 0   # (hypothesis runs the examples inside one test: no fixture per example)
     try:
         verdict = SatEngine(simulation_rounds=0).check(mutant, Sorts(), Budget())
     finally:
-        sat.PROFILE_LIMIT = saved
+        sat_profiles.PROFILE_LIMIT = saved
     expected = check(mutant, Sorts(), engine="enumerate").status
     assert verdict.status == expected
     if verdict.status == Status.REFUTED:

@@ -52,9 +52,10 @@ from sortcheck.engines.networks.certificates import canonical, claim_digest, cla
 from sortcheck.engines.networks.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.networks.cnf import dimacs, part_clauses
 from sortcheck.engines.networks.order import relations_prove_sorted
-from sortcheck.engines.networks.profiles import TwoRuns, apply_layers, check_profiles, layers_of
+from sortcheck.engines.networks.profiles import apply_layers, layers_of
 from sortcheck.engines.networks.split import SortedParts, frontier, join_delayed_order, split_tree
 from sortcheck.engines.networks.sat_blocks import BlockSteps, BlockTally
+from sortcheck.engines.networks.sat_profiles import ProfileSteps, question_key
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
 from sortcheck.model.semantics import violation
 
@@ -70,10 +71,6 @@ PROOF_SOLVERS = ("glucose3", "glucose4", "glucose42", "gluecard3", "gluecard4", 
 
 #: Parts with at most this many 0-1 vectors are checked by enumerating them.
 ENUMERATION_LIMIT = 1 << 22
-
-#: Parts on two proved runs with more 0-1 vectors than this are checked on profiles
-#: (:mod:`sortcheck.engines.networks.profiles`), smaller ones by enumeration.
-PROFILE_LIMIT = 1 << 12
 
 #: Random 0-1 inputs tried before anything else (in rounds of 4096).
 SIMULATION_ROUNDS = 4
@@ -198,7 +195,7 @@ def proved_frontier(network: ComparatorNetwork, budget: Budget) -> tuple[list[tu
     return [(parts[i].channels, parts[i].order) for i in below], comparators
 
 
-class SatEngine(BlockSteps):
+class SatEngine(BlockSteps, ProfileSteps):
     """Random simulation, then the network split along its structure, then SAT (glucose 4).
 
     Parameters
@@ -219,7 +216,8 @@ class SatEngine(BlockSteps):
         The most vectors one check after such sub-networks may enumerate.
     profiles : bool
         Check parts on two proved runs on profiles (:mod:`sortcheck.engines.networks.profiles`)
-        when they have more than :data:`PROFILE_LIMIT` vectors (False: enumeration or SAT).
+        when they have more than :data:`~sortcheck.engines.networks.sat_profiles.PROFILE_LIMIT` vectors
+        (False: enumeration or SAT).
     """
 
     name = "sat"
@@ -326,7 +324,7 @@ class SatEngine(BlockSteps):
             tally.parts_dissolved += 1
             return
         groups = [(parts[i].channels, parts[i].order) for i in below]
-        key = None if tally.certify else _question_key(network, part.channels, groups, comparators)
+        key = None if tally.certify else question_key(network, part.channels, groups, comparators)
         if key is not None and key in tally.decided_parts:
             part.order = tally.decided_parts[key]
             tally.parts_reused += 1
@@ -339,53 +337,10 @@ class SatEngine(BlockSteps):
         else:
             tally.parts_proved += 1
 
-    def _part_order(self, network: ComparatorNetwork, part, groups: list, comparators: list[int], budget: Budget,
-                    tally: _Tally) -> str:
-        """The order part ``part`` is proved to sort in from its groups, or ``"dissolved"``."""
-        orders = ("ascending", "descending")
-        if self._profiled(groups, tally):
-            failures = self._by_profiles(network, groups, comparators, [(part.channels, o) for o in orders],
-                                         budget, tally)
-            return next((order for order, failing in zip(orders, failures) if failing is None), "dissolved")
-        for order in orders:
-            failing, _ = self._decide(network, groups, comparators, ("sorted", part.channels, order), budget, tally)
-            if failing is None:
-                return order
-        return "dissolved"
-
-    def _profiles_wanted(self, vectors: int, tally: _Tally) -> bool:
-        """Whether a question on two runs of this many vectors goes to profiles."""
-        return self.profiles and not tally.certify and vectors > PROFILE_LIMIT
-
-    @staticmethod
-    def _sorted_target(network: ComparatorNetwork, target) -> tuple[tuple[int, ...], str] | None:
-        """``target`` as (channels, order) to be sorted in, or None for a property that is not a sort or merge."""
-        if isinstance(target, tuple):
-            return target[1], target[2]
-        if isinstance(target, (Sorts, Merges)):
-            return tuple(range(network.channels)), getattr(target, "order", "ascending")
-        return None
-
     @staticmethod
     def _interrupted() -> Exception:
+        """The exception that ends a check at the deadline (raised by the steps of other modules too)."""
         return _Interrupted()
-
-    def _profiled(self, groups: list, tally: _Tally) -> bool:
-        """Whether a question from ``groups`` goes to profiles: two runs, many vectors, no certificates."""
-        return len(groups) == 2 and self._profiles_wanted((len(groups[0][0]) + 1) * (len(groups[1][0]) + 1), tally)
-
-    def _by_profiles(self, network: ComparatorNetwork, groups: list, comparators: list[int], targets: list,
-                     budget: Budget, tally: _Tally) -> list[tuple[int, ...] | None]:
-        """Per target ``(channels, order)``: a vector sorted on the two groups left unsorted there, or None."""
-        runs = TwoRuns(groups)
-        try:
-            points = check_profiles(network.comparators, runs, comparators, targets, budget.expired)
-        except TimeoutError:
-            raise _Interrupted from None
-        tally.parts_profiled += 1
-        tally.profiles += runs.size + 1
-        tally.profiled_vectors += runs.total
-        return [None if point is None else runs.vector(point, network.channels) for point in points]
 
     def _decide(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
                 tally: _Tally) -> tuple[tuple[int, ...] | None, str]:
@@ -575,17 +530,3 @@ class SatEngine(BlockSteps):
                  f"{tally.sat_calls} SAT calls; random inputs found no failure; nothing is proved")
         return Verdict(Status.UNKNOWN, self.name, prop, StopReason.TIMEOUT, scope, figures["seconds"], None, figures)
 
-
-def _question_key(network: ComparatorNetwork, channels: tuple[int, ...], groups: list, comparators: list[int]) -> bytes:
-    """The question of a part with its channels relabelled ``0..k-1`` in ascending order, as bytes.
-
-    Two parts with equal keys ask the same question of translated channels: their groups (with
-    orders) and comparator sequences correspond one to one under an order-keeping relabelling.
-    """
-    rank = np.full(network.channels, -1, dtype=np.int64)
-    rank[np.array(channels, dtype=np.int64)] = np.arange(len(channels))
-    pairs = np.array([network.comparators[i] for i in comparators], dtype=np.int64).reshape(-1, 2)
-    described = [len(channels), len(groups)]
-    for members, order in groups:
-        described += [len(members), order == "descending", *rank[np.array(members, dtype=np.int64)].tolist()]
-    return np.array(described, dtype=np.int64).tobytes() + b"|" + rank[pairs].astype(np.int64).tobytes()
