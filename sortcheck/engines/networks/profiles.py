@@ -193,10 +193,12 @@ def _first_failure(profiles: np.ndarray, order: str, first: int,
     # ascending: row k must be 1 only where row k+1 is, i.e. profile_k >= profile_{k+1}
     if window is None:
         start, bad = upper, upper < lower
-    else:
-        low, high = (bound.astype(np.int64)[None, :] for bound in window)
-        start = np.maximum(upper.astype(np.int64), low)
-        bad = start < np.minimum(lower.astype(np.int64), high + 1)
+    else:  # in the profiles' own type, no wider copies: profiles are at most t+1, so bounds past it clip safely
+        largest = np.iinfo(profiles.dtype).max
+        low = np.clip(window[0], 0, largest).astype(profiles.dtype)[None, :]
+        above = np.clip(window[1] + 1, 0, largest).astype(profiles.dtype)[None, :]
+        start = np.maximum(upper, low)
+        bad = start < np.minimum(lower, above)
     columns = np.flatnonzero(bad.any(axis=0))
     if columns.size == 0:
         return None
