@@ -24,6 +24,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from sortcheck.engines.base import Budget
 from sortcheck.engines.networks.blocks import ReachableVectors, block_network, canonical, find_blocks
 from sortcheck.engines.networks.count_intervals import CountIntervals
@@ -98,14 +100,15 @@ class BlockSteps:
         runs = TwoRuns(list(zip(blocks.channels, orders)))
         intervals = CountIntervals(groups, blocks.channels[runs.axis])
         after = [comparators[p] for p in blocks.after]
+        low, high = intervals.bounds()
         try:
             point = check_profiles(network.comparators, runs, after, [self._sorted_target(network, target)],
-                                   budget.expired, intervals.bounds())[0]
+                                   budget.expired, (low, high))[0]
         except TimeoutError:
             raise self._interrupted() from None
         tally.parts_profiled += 1
         tally.profiles += runs.size + 1
-        tally.profiled_vectors += runs.total
+        tally.profiled_vectors += int(np.clip(high - low + 1, 0, None).sum())   # the reachable count pairs
         if point is None:
             return None, "split"
         ones = intervals.witness(*point)
