@@ -516,3 +516,64 @@ def test_gate_sat_sweeping_matches_its_golden_file():
         assert all(z3.is_true(model.eval(literal(variable))) == bool(values[node]) for node, variable in loaded.items())
         solver.add(z3.Or([literal(-variable if values[node] else variable) for node, variable in loaded.items()]))
         assert solver.check([literal(number) for number in fixed]) == z3.unsat
+
+
+# --- two sorted runs as monotone profiles (encodings/two-run-profiles.md) ---------------------------------------
+
+ODD_EVEN_MERGE_4_4 = [(0, 4), (2, 6), (2, 4), (1, 5), (3, 7), (3, 5), (1, 2), (3, 4), (5, 6)]
+BITONIC_MERGE_4_4 = [(0, 4), (1, 5), (2, 6), (3, 7), (0, 2), (1, 3), (4, 6), (5, 7), (0, 1), (2, 3), (4, 5), (6, 7)]
+PROFILE_QUESTIONS = [
+    ("odd-even merge of two ascending runs of 4", [[0, 1, 2, 3], "ascending"], [[4, 5, 6, 7], "ascending"],
+     ODD_EVEN_MERGE_4_4),
+    ("the same without its last comparator", [[0, 1, 2, 3], "ascending"], [[4, 5, 6, 7], "ascending"],
+     ODD_EVEN_MERGE_4_4[:-1]),
+    ("bitonic merge of an ascending and a descending run of 4", [[0, 1, 2, 3], "ascending"],
+     [[4, 5, 6, 7], "descending"], BITONIC_MERGE_4_4),
+]
+
+
+def profile_golden():
+    from sortcheck.engines.networks.profiles import TwoRuns, apply_layers, check_profiles, layers_of
+    questions = []
+    for title, first, second, comparators in PROFILE_QUESTIONS:
+        runs = TwoRuns([(tuple(first[0]), first[1]), (tuple(second[0]), second[1])])
+        local = {channel: channel for channel in range(8)}
+        profiles = runs.start(local, np.arange(runs.size + 1))
+        apply_layers(profiles, layers_of(comparators, local), np.maximum, np.minimum)
+        failing = check_profiles(comparators, runs, range(len(comparators)), [(tuple(range(8)), "ascending")])[0]
+        questions.append({"title": title, "runs": [first, second], "comparators": [list(p) for p in comparators],
+                          "axis": runs.axis, "profiles": profiles.tolist(),
+                          "failing": None if failing is None else list(failing)})
+    return questions
+
+
+def test_two_run_profiles_match_their_golden_file_and_their_definition():
+    golden = json.loads((ENCODINGS / "two-run-profiles.golden.json").read_text())
+    assert profile_golden() == golden
+    assert [q["failing"] is None for q in golden] == [True, False, True]
+    for question in golden:
+        runs, comparators = question["runs"], [tuple(p) for p in question["comparators"]]
+        axis, height = question["axis"], 1 - question["axis"]
+        tall = len(runs[height][0])
+        for a in range(len(runs[axis][0]) + 1):
+            outputs_by_b = []
+            for b in range(tall + 1):
+                counts = {axis: a, height: b}
+                values = [0] * 8
+                for group, (members, order) in enumerate(runs):
+                    ones = members[len(members) - counts[group]:] if order == "ascending" else members[:counts[group]]
+                    for channel in ones:
+                        values[channel] = 1
+                outputs_by_b.append(run(comparators, values))
+            for channel in range(8):   # the profile: the least b at which the output is 1, else t + 1
+                least = next((b for b in range(tall + 1) if outputs_by_b[b][channel]), tall + 1)
+                assert question["profiles"][channel][a] == least
+        if question["failing"] is not None:
+            a, b = question["failing"]
+            counts = {axis: a, height: b}
+            values = [0] * 8
+            for group, (members, order) in enumerate(runs):
+                ones = members[len(members) - counts[group]:] if order == "ascending" else members[:counts[group]]
+                for channel in ones:
+                    values[channel] = 1
+            assert breaks(Sorts(), values, run(comparators, values))

@@ -15,7 +15,7 @@ from hypothesis import given, settings, strategies as st
 from sortcheck.errors import UsageError
 from sortcheck.model.families import (
     FAMILIES, MAX_CHANNELS, bitonic, build_family, insertion, merge_exchange,
-    odd_even_transposition, pairwise,
+    odd_even_merge, odd_even_transposition, pairwise,
 )
 from sortcheck.model.network import ComparatorNetwork, restrict_to_outputs
 from sortcheck.model.properties import Sorts
@@ -219,6 +219,15 @@ def test_pairwise_matches_odd_even_merge_sort_for_powers_of_two(t):
     # Parberry 1992: the pairwise network has the size and depth of Batcher's odd-even
     # merge sort, (t^2 - t + 4) 2^(t-2) - 1 and t(t+1)/2 (Knuth, TAOCP vol. 3, 5.3.4).
     network = pairwise(2 ** t)
+    assert network.size == batcher_size(t)
+    assert network.depth == greedy_depth(network.comparators, 2 ** t) == t * (t + 1) // 2
+
+
+@pytest.mark.parametrize("t", range(0, 8))
+def test_odd_even_merge_size_and_depth_for_powers_of_two(t):
+    # Batcher's odd-even merge sort on n = 2^t: (t^2 - t + 4) 2^(t-2) - 1 comparators and depth
+    # t(t+1)/2 (Knuth, TAOCP vol. 3, 5.3.4).
+    network = odd_even_merge(2 ** t)
     assert network.size == batcher_size(t)
     assert network.depth == greedy_depth(network.comparators, 2 ** t) == t * (t + 1) // 2
 

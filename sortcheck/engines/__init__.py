@@ -49,7 +49,8 @@ GATE_PIPELINE = GatePipeline(exhaustive_bits=PIPELINE_EXHAUSTIVE_BITS)
 CHOICE_REASONS = {
     "enumerate": "it evaluates every 0-1 input the property speaks about, which covers all inputs (0-1 principle)",
     "sat": ("the network is beyond enumeration; the SAT engine splits it along its structure and proves each part "
-            "(exhaustively when small, else with a SAT solver), which covers all inputs (0-1 principle)"),
+            "(exhaustively when small, merges of two sorted runs on monotone profiles, else with a SAT solver), "
+            "which covers all inputs (0-1 principle)"),
     "lift": ("the gate circuit is proved equal to a comparator network (by SAT sweeping, or block by block), which "
              "the comparator engines then check"),
     "auto": ("auto for gate circuits: simulation first, then lifting to a comparator network, BDDs of the threshold "

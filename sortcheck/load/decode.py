@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 from pathlib import Path
 from typing import Any
 
@@ -49,6 +50,10 @@ class NotAnInteger:
 
     def __repr__(self) -> str:
         return self.literal
+
+
+#: A run of more digits than an integer may have: text without one holds no integer too long to take.
+_LONG_DIGITS = re.compile(r"[0-9]{%d}" % (MAX_INTEGER_DIGITS + 1))
 
 
 def _parse_int(literal: str) -> int | TooLargeInteger:
@@ -100,7 +105,10 @@ def load_json(text: str, source: str) -> Any:
     if not text.strip():
         raise NetlistError("empty file", source)
     try:
-        data = json.loads(text, parse_int=_parse_int, parse_float=NotAnInteger, parse_constant=_reject_constant,
+        # Without a long run of digits anywhere, _parse_int would return int(literal) for every integer: the
+        # parser's own integers then give the same data several times faster (files of millions of comparators).
+        parse_int = _parse_int if _LONG_DIGITS.search(text) else int
+        data = json.loads(text, parse_int=parse_int, parse_float=NotAnInteger, parse_constant=_reject_constant,
                           object_pairs_hook=_unique_keys)
     except json.JSONDecodeError as error:
         reason = error.msg[0].lower() + error.msg[1:]
@@ -127,6 +135,9 @@ def _too_deep(data: Any) -> str | None:
         elif isinstance(value, list):
             if depth >= 2 and all(not isinstance(item, (list, dict)) for item in value):
                 continue  # a flat list (a comparator, a bit list) adds no depth worth walking
+            if 1 <= depth < MAX_NESTING and {type(item) for item in value} == {list} and not (
+                    {type(x) for item in value for x in item} & {list, dict}):
+                continue  # flat lists one level down (a layer, the comparators): each would be skipped there
             stack.extend((item, f"{where}[{index}]", depth + 1) for index, item in enumerate(value))
     return None
 

@@ -12,6 +12,7 @@ import re
 from pathlib import Path
 from typing import Any
 
+import numpy as np
 
 from sortcheck.errors import NetlistError
 from sortcheck.load.aiger import read_aiger
@@ -101,10 +102,15 @@ def _build_network(data: dict, source: str, metadata: dict) -> ComparatorNetwork
     channels = data["channels"]
     comparators: list[tuple[int, int]] = []
     if "comparators" in data:
+        if _valid_pairs(data["comparators"], channels, False):
+            return ComparatorNetwork(channels, tuple(map(tuple, data["comparators"])), **metadata)
         for i, pair in enumerate(data["comparators"]):
             comparators.append(_comparator(pair, channels, source, f"comparators[{i}]"))
         return ComparatorNetwork(channels, tuple(comparators), **metadata)
     for layer_index, layer in enumerate(data["layers"]):
+        if _valid_pairs(layer, channels, True):
+            comparators.extend(map(tuple, layer))
+            continue
         used: dict[int, str] = {}
         for i, pair in enumerate(layer):
             where = f"layers[{layer_index}][{i}]"
@@ -115,6 +121,18 @@ def _build_network(data: dict, source: str, metadata: dict) -> ComparatorNetwork
                                        f"(also by {used[channel]})", source, where)
                 used[channel] = where
     return ComparatorNetwork(channels, tuple(comparators), **metadata)
+
+
+def _valid_pairs(pairs: list, channels: int, layer: bool) -> bool:
+    """Whether every pair (already of the schema's shape) is in range and joins two channels, and, in a layer,
+    no channel is used twice: checked with numpy at once; when False, the loop finds the first problem and
+    its place."""
+    if len(pairs) < 64:
+        return False
+    array = np.asarray(pairs, dtype=np.int64)
+    if array.ndim != 2 or array.shape[1] != 2 or array.max() >= channels or (array[:, 0] == array[:, 1]).any():
+        return False
+    return not layer or np.unique(array).size == 2 * len(pairs)
 
 
 def _comparator(pair: list[int], channels: int, source: str, where: str) -> tuple[int, int]:

@@ -249,12 +249,58 @@ def pairwise(n: int) -> ComparatorNetwork:
     return _network("pairwise", n, comparators, f"Parberry's pairwise sorting network on {n} channels.")
 
 
+def _odd_even_merge(first: int, length: int, stride: int, out: list[Comparator]) -> None:
+    """Batcher's odd-even merge of the channels ``first, first + stride, ...`` (``length`` of them in all)."""
+    step = stride * 2
+    if step < length:
+        _odd_even_merge(first, length, step, out)
+        _odd_even_merge(first + stride, length, step, out)
+        out.extend((i, i + stride) for i in range(first + stride, first + length - stride, step))
+    else:
+        out.append((first, first + stride))
+
+
+def _odd_even_merge_sort(first: int, length: int, out: list[Comparator]) -> None:
+    if length > 1:
+        half = length // 2
+        _odd_even_merge_sort(first, half, out)
+        _odd_even_merge_sort(first + half, half, out)
+        _odd_even_merge(first, length, 1, out)
+
+
+def odd_even_merge(n: int) -> ComparatorNetwork:
+    """Batcher's odd-even merge sort on ``n`` channels.
+
+    Sort both halves, then merge them: the runs' even-indexed and odd-indexed
+    members are merged recursively and a last layer compares neighbours.
+    For ``n`` not a power of two the network on the next power of two is
+    built and the comparators that reach past channel ``n - 1`` are left out
+    (those channels would hold values larger than any other, which such a
+    comparator never moves).
+
+    Examples
+    --------
+    >>> odd_even_merge(4).comparators
+    ((0, 1), (2, 3), (0, 2), (1, 3), (1, 2))
+    >>> odd_even_merge(8).size, odd_even_merge(8).depth
+    (19, 6)
+    >>> odd_even_merge(6).apply([6, 5, 4, 3, 2, 1])
+    [1, 2, 3, 4, 5, 6]
+    """
+    _require_channels("odd-even-merge", n)
+    comparators: list[Comparator] = []
+    _odd_even_merge_sort(0, 1 << (n - 1).bit_length(), comparators)
+    return _network("odd-even-merge", n, [(a, b) for a, b in comparators if b < n],
+                    f"Batcher's odd-even merge sort on {n} channels.")
+
+
 FAMILIES: dict[str, Callable[[int], ComparatorNetwork]] = {
     "merge-exchange": merge_exchange,
     "bitonic": bitonic,
     "odd-even-transposition": odd_even_transposition,
     "insertion": insertion,
     "pairwise": pairwise,
+    "odd-even-merge": odd_even_merge,
 }
 """Command-line family names and their builders."""
 

@@ -52,8 +52,10 @@ from sortcheck.engines.networks.certificates import canonical, claim_digest, cla
 from sortcheck.engines.networks.bitslice import _descents, apply_network, failure_mask, first_failing_lane
 from sortcheck.engines.networks.cnf import dimacs, part_clauses
 from sortcheck.engines.networks.order import relations_prove_sorted
+from sortcheck.engines.networks.profiles import apply_layers, layers_of
 from sortcheck.engines.networks.split import SortedParts, frontier, join_delayed_order, split_tree
 from sortcheck.engines.networks.sat_blocks import BlockSteps, BlockTally
+from sortcheck.engines.networks.sat_profiles import ProfileSteps, question_key
 from sortcheck.model import ComparatorNetwork, Merges, Netlist, PartialSort, Property, Sorts
 from sortcheck.model.semantics import violation
 
@@ -107,6 +109,13 @@ class _Tally:
     enumerated: list = field(default_factory=list)
     #: Order relations are still to be tried on the checked network (a sort, not yet tried).
     relations_pending: bool = False
+    #: Parts checked on profiles, the profiles evaluated and the 0-1 vectors they stand for.
+    parts_profiled: int = 0
+    profiles: int = 0
+    profiled_vectors: int = 0
+    #: Parts whose question (relabelled to channels 0..k-1) was decided before -> the order found.
+    decided_parts: dict = field(default_factory=dict)
+    parts_reused: int = 0
 
 
 
@@ -119,11 +128,18 @@ def _apply_within(rows: list, pairs: list, scratch: np.ndarray, budget: Budget, 
     return scratch
 
 
+#: Above this many channels, random simulation uses fewer lanes and random inputs of about the drawn weight
+#: (each channel 1 with probability weight/n) instead of exactly it, which needs a sort of n keys per lane.
+LARGE_SIMULATION = 4096
+
+
 def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: Budget, seed: int = 2024
               ) -> tuple[int, ...] | None:
     """A failing 0-1 input among random ones, or None.  Merges get random pairs of ascending runs."""
-    n, lanes = network.channels, 4096
+    n = network.channels
+    lanes = 4096 if n <= LARGE_SIMULATION else max(256, (1 << 24) // n // 64 * 64)
     rng = np.random.default_rng(seed)
+    layers = layers_of(network.comparators, range(n))
     for _ in range(rounds):
         if isinstance(prop, Merges):
             source = SortedParts([(tuple(range(prop.split)), "ascending"), (tuple(range(prop.split, n)), "ascending")])
@@ -134,15 +150,20 @@ def _simulate(network: ComparatorNetwork, prop: Property, rounds: int, budget: B
             spread = rng.integers(0, n + 1, size=lanes // 2)
             middle = np.clip(np.rint(rng.normal(n / 2, max(1.0, np.sqrt(n) / 2), size=lanes - lanes // 2)), 0, n)
             weights = np.concatenate([spread, middle.astype(np.int64)])
-            # lane i: ones on the weights[i] channels of smallest random key (a uniformly random set of that
-            # size), found with one sort: those keys are at most the weights[i]-th smallest
-            keys = rng.random((lanes, n))
-            cut = np.sort(keys, axis=1)[np.arange(lanes), np.clip(weights - 1, 0, n - 1)]
-            bits = ((keys <= cut[:, None]) & (weights[:, None] > 0)).T
+            if n <= LARGE_SIMULATION:
+                # lane i: ones on the weights[i] channels of smallest random key (a uniformly random set of that
+                # size), found with one sort: those keys are at most the weights[i]-th smallest
+                keys = rng.random((lanes, n))
+                cut = np.sort(keys, axis=1)[np.arange(lanes), np.clip(weights - 1, 0, n - 1)]
+                bits = ((keys <= cut[:, None]) & (weights[:, None] > 0)).T
+            else:
+                bits = (rng.random((n, lanes), dtype=np.float32) < (weights / n).astype(np.float32)[None, :])
         packed = np.ascontiguousarray(np.packbits(bits, axis=1, bitorder="little")).view("<u8")
-        rows = [packed[c].copy() for c in range(n)]
-        _apply_within(rows, list(network.comparators), np.empty(lanes // 64, dtype=np.uint64), budget)
-        lane = first_failing_lane(failure_mask(prop, rows), lanes)
+        try:
+            apply_layers(packed, layers, np.bitwise_and, np.bitwise_or, budget.expired)
+        except TimeoutError:
+            raise _Interrupted from None
+        lane = first_failing_lane(failure_mask(prop, list(packed)), lanes)
         if lane is not None:
             return tuple(int(b) for b in bits[:, lane])
     return None
@@ -174,7 +195,7 @@ def proved_frontier(network: ComparatorNetwork, budget: Budget) -> tuple[list[tu
     return [(parts[i].channels, parts[i].order) for i in below], comparators
 
 
-class SatEngine(BlockSteps):
+class SatEngine(BlockSteps, ProfileSteps):
     """Random simulation, then the network split along its structure, then SAT (glucose 4).
 
     Parameters
@@ -193,6 +214,10 @@ class SatEngine(BlockSteps):
         their own (:mod:`sortcheck.engines.networks.sat_blocks`).
     block_limit : int
         The most vectors one check after such sub-networks may enumerate.
+    profiles : bool
+        Check parts on two proved runs on profiles (:mod:`sortcheck.engines.networks.profiles`)
+        when they have more than :data:`~sortcheck.engines.networks.sat_profiles.PROFILE_LIMIT` vectors
+        (False: enumeration or SAT).
     """
 
     name = "sat"
@@ -203,8 +228,9 @@ class SatEngine(BlockSteps):
 
     def __init__(self, solver: str = SOLVER, enumeration_limit: int = ENUMERATION_LIMIT, split: bool = True,
                  simulation_rounds: int = SIMULATION_ROUNDS, blocks: bool = True,
-                 block_limit: int = ENUMERATION_LIMIT):
+                 block_limit: int = ENUMERATION_LIMIT, profiles: bool = True):
         self.solver = solver
+        self.profiles = profiles
         self.enumeration_limit = enumeration_limit
         self.split = split
         self.blocks = blocks
@@ -284,7 +310,13 @@ class SatEngine(BlockSteps):
         return self._decide(network, groups, comparators, prop, budget, tally)
 
     def _settle(self, network: ComparatorNetwork, parts: list, index: int, budget: Budget, tally: _Tally) -> None:
-        """Prove part ``index`` sorts (ascending, else descending) or dissolve it."""
+        """Prove part ``index`` sorts (ascending, else descending) or dissolve it.
+
+        A part whose question, relabelled to channels ``0..k-1`` in ascending order, was decided
+        before (the translated merges of Batcher's networks) takes the same answer: order-keeping
+        relabelling maps the one question onto the other exactly.  Not with certificates, which
+        record a claim per part.
+        """
         part = parts[index]
         below, comparators = frontier(parts, index)
         if len(comparators) > (DISSOLVED_RATIO + 1) * max(1, len(part.segment)):
@@ -292,18 +324,30 @@ class SatEngine(BlockSteps):
             tally.parts_dissolved += 1
             return
         groups = [(parts[i].channels, parts[i].order) for i in below]
-        for order in ("ascending", "descending"):
-            failing, _ = self._decide(network, groups, comparators, ("sorted", part.channels, order), budget, tally)
-            if failing is None:
-                part.order = order
-                tally.parts_proved += 1
-                return
-        part.order = "dissolved"
-        tally.parts_dissolved += 1
+        key = None if tally.certify else question_key(network, part.channels, groups, comparators)
+        if key is not None and key in tally.decided_parts:
+            part.order = tally.decided_parts[key]
+            tally.parts_reused += 1
+        else:
+            part.order = self._part_order(network, part, groups, comparators, budget, tally)
+            if key is not None:
+                tally.decided_parts[key] = part.order
+        if part.order == "dissolved":
+            tally.parts_dissolved += 1
+        else:
+            tally.parts_proved += 1
+
+    @staticmethod
+    def _interrupted() -> Exception:
+        """The exception that ends a check at the deadline (raised by the steps of other modules too)."""
+        return _Interrupted()
 
     def _decide(self, network: ComparatorNetwork, groups: list, comparators: list[int], target, budget: Budget,
                 tally: _Tally) -> tuple[tuple[int, ...] | None, str]:
         """A vector sorted on the groups that breaks ``target`` after ``comparators``, or None; and the method."""
+        if self._profiled(groups, tally) and self._sorted_target(network, target) is not None:
+            return (self._by_profiles(network, groups, comparators, [self._sorted_target(network, target)], budget,
+                                      tally)[0], "split")
         source = SortedParts(groups)
         if source.total <= self.enumeration_limit:
             tally.parts_enumerated += 1
@@ -439,19 +483,28 @@ class SatEngine(BlockSteps):
                 "parts_proved": tally.parts_proved, "parts_dissolved": tally.parts_dissolved,
                 "parts_enumerated": tally.parts_enumerated, "vectors_enumerated": tally.vectors,
                 "sub_networks_proved": tally.blocks.used, "sub_networks_distinct": tally.blocks.distinct,
+                "parts_profiled": tally.parts_profiled, "profiles_evaluated": tally.profiles,
+                "vectors_profiled": tally.profiled_vectors, "parts_reused": tally.parts_reused,
                 "seconds": time.perf_counter() - started}
 
     def _proved_scope(self, network: ComparatorNetwork, prop: Property, tally: _Tally) -> str:
         n = network.channels
         inputs = (f"every input on {n} channels whose positions 0..{prop.split - 1} and {prop.split}..{n - 1} are "
                   f"each ascending" if isinstance(prop, Merges) else f"every input on {n} channels")
-        if tally.vectors == 0 and tally.parts_proved == 0:
+        if tally.vectors == 0 and tally.parts_proved == 0 and tally.parts_profiled == 0:
             how = f"through a SAT proof of unsatisfiability ({self.solver})"
         else:
             how = (f"the network was split along its structure into {tally.parts_proved} proved sorting parts and "
                    f"the property, each checked on every 0-1 vector the parts before it can produce: "
                    f"{tally.vectors:,} vectors enumerated bit-parallel and {tally.sat_calls} SAT proofs of "
                    f"unsatisfiability ({self.solver})")
+            if tally.parts_profiled:
+                how += (f"; {tally.parts_profiled} questions on two proved sorted runs were decided exactly on "
+                        f"{tally.profiles:,} monotone profiles standing for {tally.profiled_vectors:,} 0-1 vectors "
+                        f"(encodings/two-run-profiles.md)")
+            if tally.parts_reused:
+                how += (f"; {tally.parts_reused} parts asked the same question as a part decided before, on "
+                        f"other channels in the same order, and took its answer")
             if tally.blocks.used:
                 how += (f"; {tally.blocks.used} independent sub-networks on disjoint channel sets "
                         f"({tally.blocks.distinct} distinct) were proved, each as a network of its own by the same "
@@ -476,3 +529,4 @@ class SatEngine(BlockSteps):
         scope = (f"the time budget ran out after {tally.parts_proved} parts were proved to sort and "
                  f"{tally.sat_calls} SAT calls; random inputs found no failure; nothing is proved")
         return Verdict(Status.UNKNOWN, self.name, prop, StopReason.TIMEOUT, scope, figures["seconds"], None, figures)
+

@@ -24,8 +24,12 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from sortcheck.engines.base import Budget
 from sortcheck.engines.networks.blocks import ReachableVectors, block_network, canonical, find_blocks
+from sortcheck.engines.networks.count_intervals import CountIntervals
+from sortcheck.engines.networks.profiles import TwoRuns, check_profiles
 from sortcheck.engines.networks.split import SortedParts
 from sortcheck.engines.networks.order import relations_prove_sorted
 from sortcheck.model import ComparatorNetwork, Sorts
@@ -65,7 +69,12 @@ class BlockSteps:
             return None
         pairs = [network.comparators[i] for i in comparators]
         blocks = find_blocks(pairs, [c for members, _ in groups for c in members])
-        if blocks is None or math.prod(len(block) + 1 for block in blocks.channels) > self.block_limit:
+        if blocks is None:
+            return None
+        count_pairs = math.prod(len(block) + 1 for block in blocks.channels)
+        by_intervals = (len(blocks.channels) == 2 and self._profiles_wanted(count_pairs, tally)
+                        and self._sorted_target(network, target) is not None)
+        if count_pairs > self.block_limit and not by_intervals:
             return None
         orders = []
         for channels, members in zip(blocks.channels, blocks.members):
@@ -74,10 +83,38 @@ class BlockSteps:
                 return None
             orders.append(order)
         blocks_tally.used += len(blocks.channels)
+        if by_intervals:
+            return self._after_blocks_by_intervals(network, groups, comparators, blocks, orders, target, budget,
+                                                   tally)
         source = ReachableVectors(groups, list(zip(blocks.channels, orders)))
         tally.parts_enumerated += 1
         failing = self._enumerate(network, source, [comparators[p] for p in blocks.after], target, budget, tally)
         return failing, "split"
+
+    def _after_blocks_by_intervals(self, network: ComparatorNetwork, groups: list, comparators: list[int], blocks,
+                                   orders: list[str], target, budget: Budget, tally
+                                   ) -> tuple[tuple[int, ...] | None, str] | None:
+        """The comparators after two sorting blocks, on profiles of the two blocks' counts, restricted to
+        the reachable counts (:mod:`sortcheck.engines.networks.count_intervals`); None when a failing
+        count pair is found but no witness can be built (the tables would be too large)."""
+        runs = TwoRuns(list(zip(blocks.channels, orders)))
+        intervals = CountIntervals(groups, blocks.channels[runs.axis])
+        after = [comparators[p] for p in blocks.after]
+        low, high = intervals.bounds()
+        try:
+            point = check_profiles(network.comparators, runs, after, [self._sorted_target(network, target)],
+                                   budget.expired, (low, high))[0]
+        except TimeoutError:
+            raise self._interrupted() from None
+        tally.parts_profiled += 1
+        tally.profiles += runs.size + 1
+        tally.profiled_vectors += int(np.clip(high - low + 1, 0, None).sum())   # the reachable count pairs
+        if point is None:
+            return None, "split"
+        ones = intervals.witness(*point)
+        if ones is None:
+            return None
+        return SortedParts(groups).vector_of_ones(ones, network.channels), "split"
 
     def _sorts_alone(self, network: ComparatorNetwork, budget: Budget, tally) -> str | None:
         """The order (``"ascending"``, ``"descending"``) ``network`` is proved to sort every input in, or None."""
@@ -98,7 +135,8 @@ class BlockSteps:
         for order in ("ascending", "descending"):
             if self._sample(network, singles, everything, ("sorted", channels, order), budget) is not None:
                 continue
-            if relations_prove_sorted(network.channels, network.comparators, order == "descending", budget):
+            if _relations_worth_trying(network) and relations_prove_sorted(
+                    network.channels, network.comparators, order == "descending", budget):
                 return order
             tally.blocks.depth += 1
             try:
@@ -107,3 +145,18 @@ class BlockSteps:
                 tally.blocks.depth -= 1
             return order if failing is None else None
         return None
+
+
+#: Sub-networks of at most this many channels always try order relations first (they are cheap there).
+RELATIONS_CHANNELS = 512
+
+
+def _relations_worth_trying(network: ComparatorNetwork) -> bool:
+    """Order relations for a sub-network: when small, or deeper than ``ceil(log2 n)^2``.
+
+    As for the checked network itself (``SatEngine._try_relations``): relations prove deep networks
+    of adjacent comparators, and fail on Batcher's and the pairwise networks, where on the 4,096
+    channels of pairwise 8192's halves they took 64 s of a 136 s check; the split proves those.
+    """
+    n = network.channels
+    return n <= RELATIONS_CHANNELS or network.depth > math.ceil(math.log2(n)) ** 2

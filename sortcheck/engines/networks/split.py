@@ -86,7 +86,9 @@ def join_delayed_order(network: ComparatorNetwork) -> list[int]:
     groups = _Groups(network.channels)
 
     def ready(index: int) -> bool:
-        return all(head[c] < len(on_channel[c]) and on_channel[c][head[c]] == index for c in comparators[index])
+        a, b = comparators[index]
+        on_a, on_b = on_channel[a], on_channel[b]
+        return (head[a] < len(on_a) and on_a[head[a]] == index) and (head[b] < len(on_b) and on_b[head[b]] == index)
 
     inside: list[int] = []
     joins: list[int] = []  # a heap of the waiting joins (and of joins that have since come inside: skipped)
@@ -131,12 +133,18 @@ def join_delayed_order(network: ComparatorNetwork) -> list[int]:
             waiting.discard(index)
             join(index)
         order.append(index)
-        for channel in comparators[index]:
-            head[channel] += 1
-        following = {on_channel[c][head[c]] for c in comparators[index] if head[c] < len(on_channel[c])}
-        for candidate in sorted(following):
-            if ready(candidate):
-                offer(candidate)
+        a, b = comparators[index]
+        head[a] += 1
+        head[b] += 1
+        on_a, on_b = on_channel[a], on_channel[b]
+        next_a = on_a[head[a]] if head[a] < len(on_a) else None
+        next_b = on_b[head[b]] if head[b] < len(on_b) else None
+        if next_a is not None and next_b is not None and next_b < next_a:
+            next_a, next_b = next_b, next_a
+        if next_a is not None and ready(next_a):
+            offer(next_a)
+        if next_b is not None and next_b != next_a and ready(next_b):
+            offer(next_b)
     return order
 
 
