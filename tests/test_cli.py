@@ -241,7 +241,7 @@ def test_undecided_gate_circuit_alone_is_unknown_exit_3():
 
 
 def test_small_gate_circuit_is_proved_by_lifting_or_by_exhaustive_simulation():
-    result = run("check", CIRCUIT, "--format", "json")
+    result = run("check", CIRCUIT, "--format", "json", "--jobs", "1")  # one process: lift, then bdd (no race)
     assert result.status == 0
     assert result.json()["results"][0]["engine"] == "lift"  # a compare-and-swap lifts to one comparator
     result = run("check", CIRCUIT, *SAMPLING, "--format", "json")
