@@ -192,7 +192,7 @@ def _design(entry: dict, directory: str | Path, source: str, where: str) -> Elab
     table = entry.get("parameters", {})
     if not isinstance(table, dict):
         raise UsageError("expected a table of parameter values", source, f"{where}.parameters")
-    parameters = [parameter_value(f"{name}={value if not isinstance(value, str) else value}",
+    parameters = [parameter_value(f"{name}={value}",
                                   f"{where}.parameters.{name}", source)
                   for name, value in table.items()]
     files = entry.get("files", [])
