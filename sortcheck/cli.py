@@ -386,7 +386,7 @@ def run_check(args: argparse.Namespace, stdout: TextIO, stderr: TextIO) -> int:
 def _design(args: argparse.Namespace, files: list[str]):
     """The Verilog design the command line names: its files, ``--top`` and ``--param`` (None without files)."""
     if not files:
-        if getattr(args, "top", None) or getattr(args, "param", None):
+        if args.top or args.param:
             raise UsageError("--top and --param apply to Verilog files (*.v, *.sv), and none was given")
         return None
     parameters = [parameter_value(text, "--param") for text in args.param]
@@ -396,7 +396,7 @@ def _design(args: argparse.Namespace, files: list[str]):
 def _read(path: str, args: argparse.Namespace):
     """Read one netlist file of a command, a Verilog file as a design of its own with ``--top`` and ``--param``."""
     design = _design(args, [path]) if is_verilog(path) else None
-    return read_netlist(path, getattr(args, "words", None), getattr(args, "width", None), design)
+    return read_netlist(path, args.words, args.width, design)
 
 
 def _stats_result(path: str, args: argparse.Namespace, design=None) -> FileResult:

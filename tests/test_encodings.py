@@ -547,6 +547,16 @@ def profile_golden():
     return questions
 
 
+def _runs_vector(runs, counts: dict) -> list[int]:
+    """The 0-1 vector of 8 channels whose sorted runs hold ``counts[group]`` ones each."""
+    values = [0] * 8
+    for group, (members, order) in enumerate(runs):
+        ones = members[len(members) - counts[group]:] if order == "ascending" else members[:counts[group]]
+        for channel in ones:
+            values[channel] = 1
+    return values
+
+
 def test_two_run_profiles_match_their_golden_file_and_their_definition():
     golden = json.loads((ENCODINGS / "two-run-profiles.golden.json").read_text())
     assert profile_golden() == golden
@@ -558,22 +568,12 @@ def test_two_run_profiles_match_their_golden_file_and_their_definition():
         for a in range(len(runs[axis][0]) + 1):
             outputs_by_b = []
             for b in range(tall + 1):
-                counts = {axis: a, height: b}
-                values = [0] * 8
-                for group, (members, order) in enumerate(runs):
-                    ones = members[len(members) - counts[group]:] if order == "ascending" else members[:counts[group]]
-                    for channel in ones:
-                        values[channel] = 1
+                values = _runs_vector(runs, {axis: a, height: b})
                 outputs_by_b.append(run(comparators, values))
             for channel in range(8):   # the profile: the least b at which the output is 1, else t + 1
                 least = next((b for b in range(tall + 1) if outputs_by_b[b][channel]), tall + 1)
                 assert question["profiles"][channel][a] == least
         if question["failing"] is not None:
             a, b = question["failing"]
-            counts = {axis: a, height: b}
-            values = [0] * 8
-            for group, (members, order) in enumerate(runs):
-                ones = members[len(members) - counts[group]:] if order == "ascending" else members[:counts[group]]
-                for channel in ones:
-                    values[channel] = 1
+            values = _runs_vector(runs, {axis: a, height: b})
             assert breaks(Sorts(), values, run(comparators, values))

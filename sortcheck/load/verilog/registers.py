@@ -35,7 +35,7 @@ _FLIP_FLOPS = {
 _ASYNC_RESET = {3: "CRV", 4: "CRVE"}  # $_DFF_PN0_ (3 letters), $_DFFE_PN0P_ (4 letters)
 _CELL = re.compile(r"^\$_([A-Z]+)_([PN01]+)_$")
 
-#: What each control pin is called in messages, and the value that makes it inactive for polarity P.
+#: What each control pin is called in messages.
 PIN_ROLES = {"C": "clock", "R": "reset", "S": "set", "E": "enable"}
 
 

@@ -89,9 +89,6 @@ class VerilogError(NetlistError):
         place = f"{self.source}:{self.where}" if self.source and self.where else self.source
         return f"{place}: {self.message}" if place else self.message
 
-    def located(self, source: str) -> "VerilogError":
-        return type(self)(self.message, source, self.where)
-
 
 # --- finding Yosys -----------------------------------------------------------------------------
 
@@ -227,8 +224,9 @@ def synthesize(elaboration: Elaboration) -> Synthesized:
     UsageError
         When no Yosys is installed.
     """
-    for path in elaboration.files:
-        _read_source(path)
+    for path in elaboration.files:  # a missing file before a missing Yosys (the digest reads them)
+        if not Path(path).is_file():
+            _read_source(path)
     command, yosys = yosys_command()
     key = design_digest(elaboration, yosys)
     entry = _cache_read(key)
